@@ -1,0 +1,1 @@
+"""Parametric antenna shapes -> occupied sites of a cubic dipole lattice (no physics)."""
