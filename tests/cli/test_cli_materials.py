@@ -95,3 +95,14 @@ def test_every_subcommand_help_explains_units(capsys):
     for name, subparser in sub.choices.items():
         text = subparser.format_help()
         assert "nm" in text, name
+
+
+def test_ci_runs_exactly_the_readme_test_command():
+    # .ci/run must run the README's test command verbatim (house rule, no outside source).
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[2]
+    readme = (root / "README.md").read_text()
+    block = readme.split("<!-- test-command -->", 1)[1].split("```bash", 1)[1].split("```", 1)[0].strip()
+    ci = [line.strip() for line in (root / ".ci" / "run").read_text().splitlines()]
+    assert block in ci
