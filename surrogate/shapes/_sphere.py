@@ -11,7 +11,9 @@ __all__ = ["Sphere", "CoatedSphere"]
 
 
 def _ball_sites(radius_nm, spacing_nm):
-    count = int(np.ceil(2.0 * radius_nm / spacing_nm)) + 1
+    # The sphere is inscribed in a cube of round(D / d) cells a side, cell centres at
+    # (i - (n - 1) / 2) d: for an even count no site sits alone on a pole.
+    count = max(1, int(round(2.0 * radius_nm / spacing_nm)))
     axis, offset = centred_axis(count)
     i, j, k = np.meshgrid(axis, axis, axis, indexing="ij")
     idx = np.stack([i.ravel(), j.ravel(), k.ravel()], axis=1)

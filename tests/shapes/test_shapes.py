@@ -58,12 +58,12 @@ def test_sphere_volume_is_preserved(spacing):
 
 def test_sphere_site_count_converges_to_the_volume():
     # Lattice points in a ball approach V / d^3 as d -> 0 (Gauss circle problem in 3-D; the
-    # relative error falls irregularly but overall with d). Measured: 1.6% at d = 4 nm, 0.33% at d = 1 nm.
+    # relative error falls with d). Measured: 5.4% at d = 4 nm, 0.84% at 2 nm, 0.12% at 1 nm.
     errors = []
     for d in (4.0, 2.0, 1.0):
         sites = Sphere(preserve_volume=False).sites({"diameter_nm": 40.0}, d)
         errors.append(abs(sites.n_sites * d**3 / (4 / 3 * np.pi * 20.0**3) - 1))
-    assert errors[-1] < 0.01 and errors[-1] < errors[0]
+    assert errors[-1] < 0.003 and errors[2] < errors[1] < errors[0]
 
 
 def test_coated_sphere_core_fraction():
