@@ -15,6 +15,7 @@ __all__ = [
     "MaterialDataError",
     "WavelengthOutOfRangeError",
     "LatticeTooLargeError",
+    "StoreError",
     "SurrogateWarning",
     "NotConvergedWarning",
 ]
@@ -42,6 +43,10 @@ class WavelengthOutOfRangeError(InvalidParameterError):
 
 class LatticeTooLargeError(SurrogateError, MemoryError):
     """A dipole lattice would need more memory than the stated limit."""
+
+
+class StoreError(SurrogateError, RuntimeError):
+    """A campaign store cannot be used: corrupt, from a newer schema, read-only, disk full."""
 
 
 class SurrogateWarning(UserWarning):

@@ -1,0 +1,467 @@
+"""The campaign store: one SQLite file per campaign, crash-safe and append-only.
+
+Storage contract
+----------------
+1. One file per campaign, SQLite in WAL mode with ``synchronous=FULL``; every
+   write is one transaction (``BEGIN IMMEDIATE`` ... ``COMMIT``).  A crash or
+   ``kill -9`` at any moment loses at most the transactions in flight; SQLite's
+   journal guarantees that no half-written row survives.
+2. Records are never edited in place.  A design row (its parameters, its source)
+   is written once.  Its status is the latest row of the append-only ``events``
+   table: ``pending`` -> ``running`` -> ``done`` | ``not_converged`` | ``failed``.
+   A finished result (figures, spectrum, field map) is inserted in the same
+   transaction as its ``done`` / ``not_converged`` event and never changes.
+3. Resume: on opening for a run, designs whose latest event is ``running`` (their
+   process died) get a new ``pending`` event saying so.  ``done`` and
+   ``not_converged`` designs are never solved again; ``failed`` ones only when the
+   caller asks for a retry.  Design ids are unique, so a design is never
+   duplicated.
+4. The dataset fingerprint is a SHA-256 over the finished designs' ids,
+   parameters and figures, in id order: it changes exactly when finished data
+   change, and is what model bundles are tagged with.
+5. A schema version in ``meta``; an older file is migrated forward in one
+   transaction; a newer one, or a file that is not a store, is refused and never
+   written.
+6. Thread safety: a :class:`Store` object belongs to one thread; several
+   processes may open the same file (SQLite locking, a busy timeout of 30 s).
+"""
+
+from __future__ import annotations
+
+import enum
+import hashlib
+import json
+import sqlite3
+import zlib
+from contextlib import contextmanager
+from datetime import datetime, timezone
+from pathlib import Path
+
+import numpy as np
+
+from ..errors import StoreError
+
+__all__ = ["Store", "Status", "Source", "StoreError", "SCHEMA_VERSION"]
+
+SCHEMA_VERSION = 1
+_APPLICATION_ID = 0x414E5453  # "ANTS": marks our files in the SQLite header
+
+
+class Status(str, enum.Enum):
+    """State of a design in a campaign."""
+
+    PENDING = "pending"
+    RUNNING = "running"
+    DONE = "done"
+    FAILED = "failed"
+    NOT_CONVERGED = "not_converged"
+
+    def is_finished(self):
+        """True for states whose result is final (done, not_converged)."""
+        return self in (Status.DONE, Status.NOT_CONVERGED)
+
+
+class Source(str, enum.Enum):
+    """Where a design came from."""
+
+    SAMPLE = "sample"
+    SEARCH = "search"
+    VERIFICATION = "verification"
+    MANUAL = "manual"
+
+
+_SCHEMA = """
+CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
+CREATE TABLE designs (
+    design_id TEXT PRIMARY KEY,
+    seq INTEGER NOT NULL UNIQUE,
+    source TEXT NOT NULL CHECK (source IN ('sample', 'search', 'verification', 'manual')),
+    params_json TEXT NOT NULL,
+    created_utc TEXT NOT NULL
+);
+CREATE TABLE events (
+    event_id INTEGER PRIMARY KEY AUTOINCREMENT,
+    design_id TEXT NOT NULL REFERENCES designs(design_id),
+    status TEXT NOT NULL CHECK (status IN ('pending', 'running', 'done', 'failed', 'not_converged')),
+    at_utc TEXT NOT NULL,
+    message TEXT NOT NULL DEFAULT '',
+    run_id INTEGER REFERENCES runs(run_id)
+);
+CREATE INDEX events_by_design ON events(design_id, event_id);
+CREATE TABLE results (
+    design_id TEXT PRIMARY KEY REFERENCES designs(design_id),
+    figures_json TEXT NOT NULL,
+    solver_json TEXT NOT NULL,
+    elapsed_s REAL NOT NULL,
+    finished_utc TEXT NOT NULL
+);
+CREATE TABLE spectra (
+    design_id TEXT NOT NULL REFERENCES results(design_id),
+    wavelength_nm REAL NOT NULL,
+    c_ext_nm2 REAL, c_abs_nm2 REAL, c_sca_nm2 REAL, enhancement REAL,
+    converged INTEGER NOT NULL, n_iter INTEGER NOT NULL, residual REAL NOT NULL,
+    PRIMARY KEY (design_id, wavelength_nm)
+);
+CREATE TABLE field_maps (
+    design_id TEXT PRIMARY KEY REFERENCES results(design_id),
+    wavelength_nm REAL NOT NULL,
+    y_nm BLOB NOT NULL, z_nm BLOB NOT NULL, intensity BLOB NOT NULL,
+    n_y INTEGER NOT NULL, n_z INTEGER NOT NULL
+);
+CREATE TABLE runs (
+    run_id INTEGER PRIMARY KEY AUTOINCREMENT,
+    command TEXT NOT NULL, code_version TEXT NOT NULL, started_utc TEXT NOT NULL,
+    finished_utc TEXT, note TEXT NOT NULL DEFAULT ''
+);
+CREATE VIEW design_status AS
+    SELECT d.design_id, d.seq, d.source, d.params_json, e.status, e.message, e.at_utc
+    FROM designs d JOIN events e ON e.event_id = (
+        SELECT MAX(event_id) FROM events WHERE design_id = d.design_id);
+"""
+
+# schema version -> SQL that brings the previous version to it (none yet beyond 1)
+_MIGRATIONS: dict[int, str] = {}
+
+
+def _now():
+    return datetime.now(timezone.utc).isoformat(timespec="milliseconds")
+
+
+def _pack(array):
+    return zlib.compress(np.ascontiguousarray(array, dtype="<f4").tobytes(), 6)
+
+
+def _unpack(blob, shape):
+    return np.frombuffer(zlib.decompress(blob), dtype="<f4").reshape(shape).astype(float)
+
+
+class Store:
+    """A campaign store (see the module docstring for the contract).
+
+    Use :meth:`create` for a new file and :meth:`open` for an existing one.
+    """
+
+    def __init__(self, path, connection):
+        self.path = Path(path)
+        self._db = connection
+
+    # -- opening -------------------------------------------------------------------------
+    @classmethod
+    def create(cls, path, *, spec, code_version):
+        """Create a new store holding ``spec`` (a JSON-ready dict). Refuses an existing file."""
+        path = Path(path)
+        if path.exists():
+            raise StoreError(f"store {path} already exists; open it instead of creating it")
+        path.parent.mkdir(parents=True, exist_ok=True)
+        tmp = path.with_name(path.name + ".creating")
+        tmp.unlink(missing_ok=True)
+        db = cls._connect(tmp)
+        try:
+            with db:
+                db.executescript(_SCHEMA)
+            with db:
+                db.execute(f"PRAGMA application_id = {_APPLICATION_ID}")
+                db.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
+                db.executemany(
+                    "INSERT INTO meta(key, value) VALUES (?, ?)",
+                    [
+                        ("schema_version", str(SCHEMA_VERSION)),
+                        ("spec_json", json.dumps(spec, sort_keys=True)),
+                        ("code_version", code_version),
+                        ("created_utc", _now()),
+                    ],
+                )
+            db.execute("PRAGMA wal_checkpoint(TRUNCATE)")
+        finally:
+            db.close()
+        tmp.replace(path)  # the store appears complete or not at all
+        for suffix in ("-wal", "-shm"):
+            Path(str(tmp) + suffix).unlink(missing_ok=True)
+        return cls.open(path)
+
+    @classmethod
+    def open(cls, path, *, readonly=False):
+        """Open an existing store; migrate an older schema; refuse a newer one or a foreign file."""
+        path = Path(path)
+        if not path.is_file():
+            raise StoreError(f"store {path} does not exist; create it with 'surrogate generate'")
+        try:
+            if readonly:
+                db = sqlite3.connect(f"file:{path}?mode=ro", uri=True, timeout=30.0, isolation_level=None)
+            else:
+                db = cls._connect(path)
+            app_id = db.execute("PRAGMA application_id").fetchone()[0]
+            version = db.execute("PRAGMA user_version").fetchone()[0]
+        except sqlite3.DatabaseError as exc:
+            raise StoreError(f"store {path} is not a readable campaign store ({exc}); it was left untouched") from None
+        if app_id != _APPLICATION_ID:
+            db.close()
+            raise StoreError(f"store {path} is not a campaign store of this program; it was left untouched")
+        if version > SCHEMA_VERSION:
+            db.close()
+            raise StoreError(
+                f"store {path} has schema version {version}, newer than this program's {SCHEMA_VERSION}; "
+                "upgrade the program; the store was left untouched"
+            )
+        store = cls(path, db)
+        if version < SCHEMA_VERSION:
+            if readonly:
+                raise StoreError(f"store {path} has old schema version {version}; open it writable to migrate")
+            store._migrate(version)
+        try:
+            db.execute("PRAGMA quick_check").fetchone()
+        except sqlite3.DatabaseError as exc:
+            db.close()
+            raise StoreError(f"store {path} is corrupt ({exc}); it was left untouched") from None
+        return store
+
+    @staticmethod
+    def _connect(path):
+        db = sqlite3.connect(str(path), timeout=30.0, isolation_level=None)
+        db.execute("PRAGMA journal_mode=WAL")
+        db.execute("PRAGMA synchronous=FULL")
+        db.execute("PRAGMA foreign_keys=ON")
+        db.execute("PRAGMA busy_timeout=30000")
+        return db
+
+    def _migrate(self, version):
+        with self._transaction():
+            for v in range(version + 1, SCHEMA_VERSION + 1):
+                self._db.executescript(_MIGRATIONS[v])
+            self._db.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
+            self._db.execute("UPDATE meta SET value = ? WHERE key = 'schema_version'", (str(SCHEMA_VERSION),))
+
+    def close(self):
+        self._db.close()
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, *exc):
+        self.close()
+
+    @contextmanager
+    def _transaction(self):
+        try:
+            self._db.execute("BEGIN IMMEDIATE")
+        except sqlite3.OperationalError as exc:
+            raise StoreError(f"store {self.path} cannot be written ({exc})") from None
+        try:
+            yield self._db
+        except BaseException:
+            self._db.execute("ROLLBACK")
+            raise
+        try:
+            self._db.execute("COMMIT")
+        except sqlite3.DatabaseError as exc:  # disk full, read-only file system, I/O error
+            try:
+                self._db.execute("ROLLBACK")
+            except sqlite3.DatabaseError:
+                pass
+            raise StoreError(f"store {self.path} could not commit ({exc}); nothing of this step was written") from None
+
+    def _write(self, fn):
+        try:
+            with self._transaction() as db:
+                return fn(db)
+        except sqlite3.DatabaseError as exc:
+            raise StoreError(f"store {self.path} could not be written ({exc}); nothing of this step was written") from None
+
+    # -- metadata ------------------------------------------------------------------------
+    def meta(self, key):
+        row = self._db.execute("SELECT value FROM meta WHERE key = ?", (key,)).fetchone()
+        return None if row is None else row[0]
+
+    @property
+    def spec(self):
+        return json.loads(self.meta("spec_json"))
+
+    def set_meta_once(self, key, value):
+        """Record a metadata value; refuses to change one already recorded."""
+        old = self.meta(key)
+        if old is not None:
+            if old != value:
+                raise StoreError(f"store {self.path}: {key} is already recorded and differs; records are never edited")
+            return
+        self._write(lambda db: db.execute("INSERT INTO meta(key, value) VALUES (?, ?)", (key, value)))
+
+    # -- runs ----------------------------------------------------------------------------
+    def start_run(self, command, code_version, note=""):
+        """Log a run; reset designs left ``running`` by a dead process to ``pending``."""
+
+        def fn(db):
+            cur = db.execute(
+                "INSERT INTO runs(command, code_version, started_utc, note) VALUES (?, ?, ?, ?)",
+                (command, code_version, _now(), note),
+            )
+            run_id = cur.lastrowid
+            stale = [r[0] for r in db.execute("SELECT design_id FROM design_status WHERE status = 'running'")]
+            db.executemany(
+                "INSERT INTO events(design_id, status, at_utc, message, run_id) VALUES (?, 'pending', ?, ?, ?)",
+                [(d, _now(), "interrupted run; returned to pending", run_id) for d in stale],
+            )
+            return run_id
+
+        return self._write(fn)
+
+    def finish_run(self, run_id, note=""):
+        self._write(
+            lambda db: db.execute(
+                "UPDATE runs SET finished_utc = ?, note = note || ? WHERE run_id = ? AND finished_utc IS NULL",
+                (_now(), note, run_id),
+            )
+        )
+
+    def runs(self):
+        cols = ("run_id", "command", "code_version", "started_utc", "finished_utc", "note")
+        return [dict(zip(cols, r)) for r in self._db.execute(f"SELECT {', '.join(cols)} FROM runs ORDER BY run_id")]
+
+    # -- designs -------------------------------------------------------------------------
+    def add_designs(self, designs, *, source=Source.SAMPLE):
+        """Add designs (``(design_id, params)`` pairs) as pending, in one transaction.
+
+        Ids already present are refused (nothing is written).
+        """
+        source = Source(source)
+        designs = list(designs)
+
+        def fn(db):
+            seq0 = db.execute("SELECT COALESCE(MAX(seq), -1) FROM designs").fetchone()[0] + 1
+            now = _now()
+            try:
+                db.executemany(
+                    "INSERT INTO designs(design_id, seq, source, params_json, created_utc) VALUES (?, ?, ?, ?, ?)",
+                    [(i, seq0 + k, source.value, json.dumps(p, sort_keys=True), now) for k, (i, p) in enumerate(designs)],
+                )
+            except sqlite3.IntegrityError as exc:
+                raise StoreError(f"store {self.path}: design ids must be new ({exc}); nothing was added") from None
+            db.executemany(
+                "INSERT INTO events(design_id, status, at_utc) VALUES (?, 'pending', ?)", [(i, now) for i, _ in designs]
+            )
+
+        self._write(fn)
+
+    def designs(self, status=None):
+        """Designs with their current status, in sequence order (list of dicts)."""
+        sql = "SELECT design_id, seq, source, params_json, status, message FROM design_status"
+        args = ()
+        if status is not None:
+            statuses = [Status(s).value for s in (status if isinstance(status, (list, tuple, set)) else [status])]
+            sql += f" WHERE status IN ({', '.join('?' * len(statuses))})"
+            args = tuple(statuses)
+        rows = self._db.execute(sql + " ORDER BY seq", args).fetchall()
+        return [
+            {"design_id": r[0], "seq": r[1], "source": r[2], "params": json.loads(r[3]), "status": Status(r[4]), "message": r[5]}
+            for r in rows
+        ]
+
+    def counts(self):
+        """Number of designs per status (every status present, zeros included)."""
+        out = {s.value: 0 for s in Status}
+        for status, n in self._db.execute("SELECT status, COUNT(*) FROM design_status GROUP BY status"):
+            out[status] = n
+        return out
+
+    def mark(self, design_id, status, message="", run_id=None):
+        """Append a status event (``running`` or ``failed``; finished states go through :meth:`record_result`)."""
+        status = Status(status)
+        if status.is_finished():
+            raise StoreError("finished states are recorded with record_result, together with their data")
+        self._write(
+            lambda db: db.execute(
+                "INSERT INTO events(design_id, status, at_utc, message, run_id) VALUES (?, ?, ?, ?, ?)",
+                (design_id, status.value, _now(), message[:2000], run_id),
+            )
+        )
+
+    def record_result(self, design_id, *, figures, solver, spectrum, field_map=None, elapsed_s, run_id=None):
+        """Store one finished design in one transaction.
+
+        Parameters
+        ----------
+        figures : dict
+            The figures-of-merit row (must hold ``converged``).
+        solver : dict
+            Settings and provenance (spacing, dipoles, materials, polarizability, ...).
+        spectrum : list of dict
+            Rows with wavelength_nm, c_ext_nm2, c_abs_nm2, c_sca_nm2, enhancement,
+            converged, n_iter, residual.
+        field_map : (wavelength_nm, y_nm, z_nm, intensity) or None
+            |E|^2 in the observation plane, stored zlib-compressed as float32.
+        """
+        status = Status.DONE if figures["converged"] else Status.NOT_CONVERGED
+        now = _now()
+
+        def fn(db):
+            current = db.execute("SELECT status FROM design_status WHERE design_id = ?", (design_id,)).fetchone()
+            if current is None:
+                raise StoreError(f"store {self.path}: design {design_id} does not exist")
+            if Status(current[0]).is_finished():
+                raise StoreError(f"store {self.path}: design {design_id} is already finished; results are never rewritten")
+            db.execute(
+                "INSERT INTO results(design_id, figures_json, solver_json, elapsed_s, finished_utc) VALUES (?, ?, ?, ?, ?)",
+                (design_id, json.dumps(figures, sort_keys=True), json.dumps(solver, sort_keys=True), float(elapsed_s), now),
+            )
+            db.executemany(
+                "INSERT INTO spectra VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                [
+                    (design_id, r["wavelength_nm"], r["c_ext_nm2"], r["c_abs_nm2"], r["c_sca_nm2"], r.get("enhancement"),
+                     int(bool(r["converged"])), int(r["n_iter"]), float(r["residual"]))
+                    for r in spectrum
+                ],
+            )
+            if field_map is not None:
+                wl, y, z, inten = field_map
+                inten = np.asarray(inten)
+                db.execute(
+                    "INSERT INTO field_maps VALUES (?, ?, ?, ?, ?, ?, ?)",
+                    (design_id, float(wl), _pack(y), _pack(z), _pack(inten), inten.shape[0], inten.shape[1]),
+                )
+            db.execute(
+                "INSERT INTO events(design_id, status, at_utc, message, run_id) VALUES (?, ?, ?, ?, ?)",
+                (design_id, status.value, now, "" if status is Status.DONE else "iterative solve hit its cap", run_id),
+            )
+
+        self._write(fn)
+        return status
+
+    # -- reading results -----------------------------------------------------------------
+    def results(self):
+        """Finished designs: dicts with design_id, params, status, figures, solver, elapsed_s."""
+        rows = self._db.execute(
+            "SELECT s.design_id, s.params_json, s.status, r.figures_json, r.solver_json, r.elapsed_s, s.source "
+            "FROM design_status s JOIN results r USING (design_id) ORDER BY s.seq"
+        ).fetchall()
+        return [
+            {"design_id": r[0], "params": json.loads(r[1]), "status": Status(r[2]), "figures": json.loads(r[3]),
+             "solver": json.loads(r[4]), "elapsed_s": r[5], "source": r[6]}
+            for r in rows
+        ]
+
+    def spectrum(self, design_id):
+        cols = ("wavelength_nm", "c_ext_nm2", "c_abs_nm2", "c_sca_nm2", "enhancement", "converged", "n_iter", "residual")
+        rows = self._db.execute(
+            f"SELECT {', '.join(cols)} FROM spectra WHERE design_id = ? ORDER BY wavelength_nm", (design_id,)
+        ).fetchall()
+        return [dict(zip(cols, r)) for r in rows]
+
+    def field_map(self, design_id):
+        """``(wavelength_nm, y_nm, z_nm, intensity)`` or None."""
+        r = self._db.execute(
+            "SELECT wavelength_nm, y_nm, z_nm, intensity, n_y, n_z FROM field_maps WHERE design_id = ?", (design_id,)
+        ).fetchone()
+        if r is None:
+            return None
+        return r[0], _unpack(r[1], (r[4],)), _unpack(r[2], (r[5],)), _unpack(r[3], (r[4], r[5]))
+
+    def fingerprint(self):
+        """SHA-256 (hex) over finished designs' ids, parameters and figures, in id order."""
+        h = hashlib.sha256()
+        for design_id, params, figures in self._db.execute(
+            "SELECT d.design_id, d.params_json, r.figures_json FROM designs d JOIN results r USING (design_id) "
+            "ORDER BY d.design_id"
+        ):
+            for part in (design_id, params, figures):
+                h.update(part.encode())
+                h.update(b"\x1f")
+        return h.hexdigest()
