@@ -70,7 +70,7 @@ class Lattice:
         else:
             mat = np.asarray(self.material_index)
             if mat.shape != (n,):
-                raise InvalidParameterError(f"material_index must have shape ({n},); got shape {mat.shape}")
+                raise InvalidParameterError(f"material_index must be an integer array of shape ({n},); got shape {mat.shape}")
             if not np.issubdtype(mat.dtype, np.integer):
                 raise InvalidTypeError(f"material_index must be an integer array; got dtype {mat.dtype}")
             mat = mat.astype(np.int64)
