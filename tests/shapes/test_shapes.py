@@ -12,19 +12,28 @@ EXAMPLES = {
     "sphere": {"diameter_nm": 40.0},
     "coated-sphere": {"core_diameter_nm": 30.0, "shell_thickness_nm": 6.0},
     "box": {"length_nm": 100.0, "width_nm": 30.0, "thickness_nm": 20.0},
+    "rod": {"length_nm": 90.0, "width_nm": 30.0, "thickness_nm": 20.0, "end_radius_nm": 15.0},
+    "gap-dimer": {"arm_length_nm": 40.0, "width_nm": 20.0, "thickness_nm": 20.0, "gap_nm": 10.0},
+    "bowtie": {"arm_length_nm": 50.0, "flare_angle_deg": 60.0, "thickness_nm": 20.0, "gap_nm": 10.0, "tip_radius_nm": 8.0},
+    "disk-peg": {"disk_diameter_nm": 100.0, "peg_length_nm": 30.0, "peg_width_nm": 20.0, "thickness_nm": 20.0},
 }
 
 
 class TestContract:
-    """Every family: valid sites, symmetric about the origin, bad parameters refused in one line."""
+    """Every family: valid sites, mirror-symmetric as declared, bad parameters refused in one line."""
+
+    def test_every_family_has_an_example(self):
+        assert set(EXAMPLES) == set(FAMILIES)
 
     @pytest.mark.parametrize("name", list(FAMILIES))
     def test_sites_are_distinct_and_centred(self, name):
         sites = FAMILIES[name].sites(EXAMPLES[name], 2.0)
         assert np.unique(sites.indices, axis=0).shape[0] == sites.n_sites
         pos = sites.positions_nm()
-        # mirror symmetry in x, y, z (the shapes are centred): the reflected set equals the set
-        for axis in range(3):
+        # mirror symmetry about each declared axis (the shapes are centred): the reflected set equals
+        # the set; every family is symmetric in y and z, all but the disk-peg also in x
+        assert {1, 2} <= set(FAMILIES[name].mirror_axes)
+        for axis in FAMILIES[name].mirror_axes:
             mirrored = pos.copy()
             mirrored[:, axis] *= -1
             a = np.round(np.sort(pos.view([("", float)] * 3), axis=0).view(float), 9)
@@ -92,3 +101,14 @@ def test_box_has_whole_planes(length, width, thickness, d):
 def test_spacing_larger_than_the_shape_is_refused():
     with pytest.raises(InvalidParameterError, match="spacing_nm must be at most the smallest dimension"):
         Box().sites({"length_nm": 100.0, "width_nm": 30.0, "thickness_nm": 5.0}, 8.0)
+
+
+@pytest.mark.parametrize("name", list(FAMILIES))
+def test_describe_lists_parameters_rules_and_hotspot(name):
+    fam = FAMILIES[name]
+    info = fam.describe()
+    assert [p["name"] for p in info["parameters"]] == list(fam.parameter_names)
+    assert all(p["low"] < p["high"] and p["name"].endswith("_" + p["unit"]) for p in info["parameters"])
+    assert [r["name"] for r in info["rules"]] == [r.name for r in fam.rules]
+    assert info["hotspot"]["kind"] == fam.hotspot_kind
+    assert fam.site_count(EXAMPLES[name], 2.0) == fam.sites(EXAMPLES[name], 2.0).n_sites
