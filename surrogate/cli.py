@@ -40,15 +40,15 @@ def build_parser():
     )
     parser.add_argument("--version", action="version", version=f"surrogate {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    from ._cli_campaign import add_campaign_commands
+    from ._cli_families import add_families_command
     from ._cli_materials import add_materials_command
+    from ._cli_simulate import add_simulate_command
 
     add_materials_command(sub, _UNITS)
-    try:
-        from ._cli_simulate import add_simulate_command
-    except ImportError:  # pragma: no cover - the simulate command lands with the solver
-        pass
-    else:
-        add_simulate_command(sub, _UNITS)
+    add_families_command(sub, _UNITS)
+    add_simulate_command(sub, _UNITS)
+    add_campaign_commands(sub, _UNITS)
     return parser
 
 

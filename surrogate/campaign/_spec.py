@@ -26,7 +26,7 @@ Schema (our own; every length in nm)
     wavelengths_nm = "600:1000:20"   # START:STOP:STEP; the laser wavelength is added if missing
     tol = 1e-5
     max_iter = 3000
-    polarizability = "fcd"           # fcd | ldr | rrcm
+    polarizability = "ldr"           # ldr | fcd | rrcm
 
 Every parameter of the family is either in ``bounds`` or in ``fixed``, never in
 both.  Problems are collected and reported together, each naming the key, the
@@ -48,7 +48,7 @@ __all__ = ["CampaignSpec", "CampaignFileError", "load_campaign", "parse_campaign
 
 _TOP = {"name", "family", "designs", "seed", "bounds", "fixed", "optics", "solver"}
 _OPTICS = {"material": "gold", "medium_index": 1.0, "laser_nm": None, "hotspot_offset_nm": 5.0}
-_SOLVER = {"spacing_nm": None, "wavelengths_nm": None, "tol": 1e-5, "max_iter": 3000, "polarizability": "fcd"}
+_SOLVER = {"spacing_nm": None, "wavelengths_nm": None, "tol": 1e-5, "max_iter": 3000, "polarizability": "ldr"}
 _NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_-]{0,63}$")
 
 

@@ -125,3 +125,51 @@ def draw_spectrum(wavelength_nm, columns, path, *, title="", laser_nm=None):
     ax.set_title(title)
     _save(fig, path)
     plt.close(fig)
+
+
+def draw_outline(outline, path, *, title=""):
+    """Top and side views of a family's ideal shape with its parameters labelled.
+
+    Parameters
+    ----------
+    outline : Outline
+        From ``family.drawing_outline(params)``.
+    path : str or Path
+        PNG file to write.
+    title : str
+        Figure title (the family and its example parameters).
+    """
+    plt = _pyplot()
+    from matplotlib.patches import Polygon
+
+    fills = {"antenna": "0.78", "core": "0.6", "shell": "0.85", "substrate": "0.93", "medium_layer": "0.88"}
+    top = np.vstack([p for _, p in outline.top])
+    ratio = float(np.ptp(top[:, 1]) / max(np.ptp(top[:, 0]), 1e-9))
+    fig, axes = plt.subplots(1, 2, figsize=(10, 1.4 + 4.4 * min(max(ratio, 0.2), 1.0)),
+                             gridspec_kw={"width_ratios": [1.3, 1]})
+    for ax, view, polys in ((axes[0], "top", outline.top), (axes[1], "side", outline.side)):
+        for region, poly in polys:
+            ax.add_patch(Polygon(poly, closed=True, facecolor=fills.get(region, "0.5"), edgecolor="k", lw=0.8))
+        for dim in outline.dimensions:
+            if dim.view != view:
+                continue
+            (x0, y0), (x1, y1) = dim.start_nm, dim.end_nm
+            ax.annotate("", xy=(x1, y1), xytext=(x0, y0), arrowprops=dict(arrowstyle="<->", lw=0.9, color="k"))
+            vertical = abs(x1 - x0) < abs(y1 - y0)
+            ax.annotate(dim.parameter, ((x0 + x1) / 2, (y0 + y1) / 2), xytext=(5, 0) if vertical else (0, 3),
+                        textcoords="offset points", fontsize=7, ha="left" if vertical else "center",
+                        va="center" if vertical else "bottom",
+                        bbox=dict(boxstyle="round,pad=0.12", fc="white", ec="none", alpha=0.8))
+        hx, hy, hz = outline.hotspot_nm
+        hp = (hx, hy) if view == "top" else (hx, hz)
+        ax.plot(*hp, marker="x", color="k", ms=9, mew=2)
+        ax.annotate("hotspot", hp, xytext=(6, 6), textcoords="offset points", fontsize=8)
+        ax.autoscale_view()
+        ax.margins(0.12)
+        ax.set_aspect("equal")
+        ax.set_xlabel("x [nm]")
+        ax.set_ylabel("y [nm]" if view == "top" else "z [nm]")
+        ax.set_title("top view (x-y)" if view == "top" else "side view (x-z)", fontsize=9)
+    fig.suptitle(title, fontsize=10)
+    _save(fig, path)
+    plt.close(fig)
