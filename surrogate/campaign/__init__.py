@@ -1,5 +1,22 @@
-"""Training-set campaigns: designs, runners and the crash-safe store."""
+"""Training-set campaigns: campaign files, space-filling designs, runners and the crash-safe store."""
 
+from ._design import design_id, sample_designs
+from ._runner import RunSummary, run_campaign
+from ._spec import CampaignFileError, CampaignSpec, load_campaign, parse_campaign
 from ._store import SCHEMA_VERSION, Source, Status, Store, StoreError
 
-__all__ = ["Store", "Status", "Source", "StoreError", "SCHEMA_VERSION"]
+__all__ = [
+    "Store",
+    "Status",
+    "Source",
+    "StoreError",
+    "SCHEMA_VERSION",
+    "CampaignSpec",
+    "CampaignFileError",
+    "load_campaign",
+    "parse_campaign",
+    "sample_designs",
+    "design_id",
+    "run_campaign",
+    "RunSummary",
+]

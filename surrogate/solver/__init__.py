@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from ._extrapolate import extrapolate_to_zero_spacing
 from ._green import dense_interaction_matrix, green_tensor
-from ._interaction import FFTInteraction
+from ._interaction import FFTInteraction, set_fft_workers
 from ._krylov import METHODS as KRYLOV_METHODS
 from ._lattice import Lattice
 from ._memory import memory_estimate_bytes
@@ -36,6 +36,7 @@ __all__ = [
     "green_tensor",
     "dense_interaction_matrix",
     "FFTInteraction",
+    "set_fft_workers",
     "POLARIZABILITIES",
     "SOLVE_METHODS",
     "KRYLOV_METHODS",

@@ -19,9 +19,26 @@ from __future__ import annotations
 import numpy as np
 import scipy.fft
 
+from ..errors import InvalidParameterError
 from ._green import green_coefficients
 
-__all__ = ["FFTInteraction", "padded_shape"]
+__all__ = ["FFTInteraction", "padded_shape", "set_fft_workers"]
+
+
+_FFT_WORKERS = [-1]
+
+
+def set_fft_workers(workers):
+    """Set the process-wide number of scipy.fft threads of later solves (-1: all cores).
+
+    A campaign runs one design per core and sets 1 in each worker process so the
+    workers do not contend for the cores.  Returns the previous setting.
+    """
+    if isinstance(workers, bool) or not isinstance(workers, int) or workers == 0 or workers < -1:
+        raise InvalidParameterError(f"workers must be -1 or a positive integer; got {workers!r}")
+    previous = _FFT_WORKERS[0]
+    _FFT_WORKERS[0] = workers
+    return previous
 
 
 def padded_shape(grid_shape):
@@ -61,17 +78,18 @@ class FFTInteraction:
         Use the filtered (FCD) tensor instead of the point-dipole one.
     dtype : numpy complex dtype
         Precision of the transforms and of the stored tensor transform.
-    workers : int
-        Threads for scipy.fft (-1: all cores).
+    workers : int or None
+        Threads for scipy.fft (-1: all cores); None (default) takes the process-wide
+        setting of :func:`set_fft_workers` (initially -1).
     """
 
-    def __init__(self, indices, spacing_nm, k_per_nm, *, filtered, dtype=np.complex128, workers=-1):
+    def __init__(self, indices, spacing_nm, k_per_nm, *, filtered, dtype=np.complex128, workers=None):
         idx = np.asarray(indices, dtype=np.int64)
         idx = idx - idx.min(axis=0)
         self.grid_shape = tuple(int(v) for v in idx.max(axis=0) + 1)
         self.padded_shape = padded_shape(self.grid_shape)
         self.dtype = np.dtype(dtype)
-        self.workers = workers
+        self.workers = _FFT_WORKERS[0] if workers is None else workers
         self.n_dipoles = idx.shape[0]
         self._ix, self._iy, self._iz = idx[:, 0], idx[:, 1], idx[:, 2]
         self._ghat = self._tensor_transform(float(spacing_nm), float(k_per_nm), filtered)
