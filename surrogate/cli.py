@@ -43,12 +43,14 @@ def build_parser():
     from ._cli_campaign import add_campaign_commands
     from ._cli_families import add_families_command
     from ._cli_materials import add_materials_command
+    from ._cli_models import add_model_commands
     from ._cli_simulate import add_simulate_command
 
     add_materials_command(sub, _UNITS)
     add_families_command(sub, _UNITS)
     add_simulate_command(sub, _UNITS)
     add_campaign_commands(sub, _UNITS)
+    add_model_commands(sub, _UNITS)
     return parser
 
 
