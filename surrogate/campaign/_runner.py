@@ -16,6 +16,8 @@ from __future__ import annotations
 import concurrent.futures as cf
 import multiprocessing
 import os
+import signal
+import threading
 import time
 import traceback
 from dataclasses import dataclass
@@ -39,11 +41,20 @@ class RunSummary:
     interrupted: bool
 
 
+def _noop(_):
+    return None
+
+
 def _limit_threads():
+    # Ctrl-C is the coordinator's to handle: it returns in-flight designs to pending.
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
     # One design per core: keep each worker's numerical libraries single-threaded.
-    for var in ("OMP_NUM_THREADS", "OPENBLAS_NUM_THREADS", "MKL_NUM_THREADS"):
-        os.environ[var] = "1"
-    os.environ["SURROGATE_FFT_WORKERS"] = "1"
+    from threadpoolctl import threadpool_limits
+
+    from ..solver import set_fft_workers
+
+    threadpool_limits(limits=1)
+    set_fft_workers(1)
 
 
 def _guarded(task, spec, design_id, params):
@@ -67,7 +78,17 @@ class _LocalPool:
 
     def _new(self):
         ctx = multiprocessing.get_context("spawn")
-        return cf.ProcessPoolExecutor(max_workers=self.workers, mp_context=ctx, initializer=_limit_threads)
+        main = threading.current_thread() is threading.main_thread()
+        previous = signal.signal(signal.SIGINT, signal.SIG_IGN) if main else None
+        try:
+            pool = cf.ProcessPoolExecutor(max_workers=self.workers, mp_context=ctx, initializer=_limit_threads)
+            # start the workers now, while Ctrl-C is ignored: they inherit the ignore, so an
+            # interrupt during their start-up cannot reach them
+            list(pool.map(_noop, range(self.workers)))
+        finally:
+            if main:
+                signal.signal(signal.SIGINT, previous)
+        return pool
 
     def submit(self, fn, *args, key=None):
         try:

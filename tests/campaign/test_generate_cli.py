@@ -133,3 +133,31 @@ def test_kill_minus_9_then_resume_loses_and_duplicates_nothing(tmp_path, seed):
         after = {r["design_id"]: r["figures"] for r in store.results()}
         assert all(after[k] == v for k, v in committed.items())  # committed results unchanged
         assert all(d["status"] is Status.DONE for d in store.designs())
+
+
+@pytest.mark.slow
+def test_ctrl_c_stops_cleanly_and_says_how_to_resume(tmp_path):
+    # Ctrl-C in a terminal sends SIGINT to the whole foreground process group.
+    toml = campaign(tmp_path, designs=8)
+    store_path = tmp_path / "tiny.sqlite"
+    proc = subprocess.Popen([sys.executable, "-m", "surrogate", "generate", str(toml), "--workers", "2", "--quiet"],
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, start_new_session=True)
+    deadline = time.time() + 240
+    while time.time() < deadline:
+        time.sleep(0.2)
+        if store_path.exists():
+            try:
+                db = sqlite3.connect(f"file:{store_path}?mode=ro", uri=True, timeout=5)
+                running = db.execute("SELECT COUNT(*) FROM design_status WHERE status = 'running'").fetchone()[0]
+                db.close()
+            except sqlite3.OperationalError:
+                continue
+            if running:
+                break
+    os.killpg(proc.pid, signal.SIGINT)
+    out, err = proc.communicate(timeout=120)
+    assert proc.returncode == 130, (out, err)
+    assert "resume with: surrogate generate" in out
+    assert "Traceback" not in err
+    with Store.open(store_path) as store:
+        assert store.counts()["running"] == 0
