@@ -15,7 +15,7 @@ from ._validation import check_positive_array, check_real
 from .errors import InvalidParameterError
 from .merit import figures_of_merit
 from .shapes import check_observation_clearance, get_family, observation_clearance
-from .simulate import SimulationResult, simulate
+from .simulate import SimulationResult, check_memory, simulate
 from .solver import near_field
 
 __all__ = ["evaluate_design", "DesignEvaluation", "map_grid_for", "LASER_FIGURES"]
@@ -154,6 +154,8 @@ def evaluate_design(
         wl = np.concatenate([wl, [laser]])
     wl = np.unique(wl)
     surroundings = {k: v for k, v in (("substrate", substrate), ("medium_layer", medium_layer)) if v is not None}
+    # refuse an oversized lattice before any site array exists (the hotspot is found on the sites)
+    check_memory(fam, clean, d, surroundings=surroundings, memory_limit_bytes=memory_limit_bytes, method=method)
     plane = fam.observation_plane(clean, d, hotspot_offset_nm=hotspot_offset_nm, **surroundings)
     hotspot = np.asarray(plane.point_nm, dtype=float)
     half, step = map_grid_for(fam, clean, d)
@@ -161,6 +163,8 @@ def evaluate_design(
     step = step if map_step_nm is None else map_step_nm
     u, v, points = plane.grid_nm(half_width_nm=half, step_nm=step)
 
+    sites = fam.sites(clean, d, **surroundings)
+    clearance = check_observation_clearance(hotspot, sites)  # before any solve
     sim = simulate(
         fam.name, clean, wavelengths_nm=wl, spacing_nm=d, material=material, region_materials=region_materials,
         medium_index=medium_index, polarizability=polarizability, method=method, tol=tol, max_iter=max_iter,
@@ -168,8 +172,6 @@ def evaluate_design(
         substrate=substrate, medium_layer=medium_layer, refine=refine, memory_limit_bytes=memory_limit_bytes,
         progress=progress,
     )
-    sites = fam.sites(clean, d, **surroundings)
-    clearance = check_observation_clearance(hotspot, sites)
     enhancement = np.array([
         float(np.sum(np.abs(near_field(sol, sim.lattice, hotspot[None, :])[0]) ** 2)) for sol in sim.solutions
     ])
