@@ -8,9 +8,10 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
 
 from . import __version__
-from .errors import SurrogateError
+from .errors import NotConvergedWarning, SurrogateError
 
 __all__ = ["main", "build_parser"]
 
@@ -58,6 +59,8 @@ def main(argv=None):
     """Run the command line; return the exit code."""
     parser = build_parser()
     args = parser.parse_args(argv)
+    # the commands report non-convergence in their own output (rows marked converged=False)
+    warnings.simplefilter("ignore", NotConvergedWarning)
     if args.command is None:
         parser.print_help()
         return EXIT_USER_ERROR
