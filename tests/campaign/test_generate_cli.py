@@ -161,3 +161,15 @@ def test_ctrl_c_stops_cleanly_and_says_how_to_resume(tmp_path):
     assert "Traceback" not in err
     with Store.open(store_path) as store:
         assert store.counts()["running"] == 0
+
+
+@pytest.mark.slow
+def test_dask_and_local_runners_give_identical_real_results(tmp_path):
+    # The same designs solved by 2 local worker processes and by a 2-worker Dask LocalCluster:
+    # bit-identical figures (same code, one FFT thread per worker), hence the same fingerprint.
+    toml = campaign(tmp_path, designs=3)
+    assert main(["generate", str(toml), "--workers", "2", "--quiet", "--store", str(tmp_path / "local.sqlite")]) == 0
+    assert main(["generate", str(toml), "--dask-workers", "2", "--quiet", "--store", str(tmp_path / "dask.sqlite")]) == 0
+    with Store.open(tmp_path / "local.sqlite") as a, Store.open(tmp_path / "dask.sqlite") as b:
+        assert a.counts()["done"] == 3
+        assert a.fingerprint() == b.fingerprint()
