@@ -45,6 +45,7 @@ def build_parser():
     from ._cli_families import add_families_command
     from ._cli_materials import add_materials_command
     from ._cli_models import add_model_commands
+    from ._cli_search import add_search_commands
     from ._cli_simulate import add_simulate_command
 
     add_materials_command(sub, _UNITS)
@@ -52,6 +53,7 @@ def build_parser():
     add_simulate_command(sub, _UNITS)
     add_campaign_commands(sub, _UNITS)
     add_model_commands(sub, _UNITS)
+    add_search_commands(sub, _UNITS)
     return parser
 
 

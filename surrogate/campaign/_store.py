@@ -21,7 +21,9 @@ Storage contract
    change, and is what model bundles are tagged with.
 5. A schema version in ``meta``; an older file is migrated forward in one
    transaction; a newer one, or a file that is not a store, is refused and never
-   written.
+   written.  Version 2 adds the search fronts (``fronts``, ``front_points``):
+   append-only, one transaction per front, guarded by triggers that refuse any
+   UPDATE or DELETE.
 6. Thread safety: a :class:`Store` object belongs to one thread; several
    processes may open the same file (SQLite locking, a busy timeout of 30 s).
 """
@@ -43,7 +45,7 @@ from ..errors import StoreError
 
 __all__ = ["Store", "Status", "Source", "StoreError", "SCHEMA_VERSION"]
 
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 _APPLICATION_ID = 0x414E5453  # "ANTS": marks our files in the SQLite header
 
 
@@ -119,8 +121,45 @@ CREATE VIEW design_status AS
         SELECT MAX(event_id) FROM events WHERE design_id = d.design_id);
 """
 
-# schema version -> SQL that brings the previous version to it (none yet beyond 1)
-_MIGRATIONS: dict[int, str] = {}
+# schema version -> SQL that brings the previous version to it; a new file runs them all
+_MIGRATIONS: dict[int, str] = {
+    2: """
+CREATE TABLE fronts (
+    front_id INTEGER PRIMARY KEY AUTOINCREMENT,
+    created_utc TEXT NOT NULL,
+    model_version INTEGER NOT NULL,
+    objectives_json TEXT NOT NULL,
+    reference_json TEXT NOT NULL,
+    hypervolume REAL NOT NULL,
+    n_trials INTEGER NOT NULL,
+    n_feasible INTEGER NOT NULL,
+    n_points INTEGER NOT NULL,
+    study_json TEXT NOT NULL,
+    settings_json TEXT NOT NULL,
+    code_version TEXT NOT NULL,
+    run_id INTEGER REFERENCES runs(run_id)
+);
+CREATE TABLE front_points (
+    front_id INTEGER NOT NULL REFERENCES fronts(front_id),
+    point_index INTEGER NOT NULL,
+    trial_number INTEGER NOT NULL,
+    params_json TEXT NOT NULL,
+    objectives_json TEXT NOT NULL,
+    predictions_json TEXT NOT NULL,
+    flags_json TEXT NOT NULL,
+    robustness_json TEXT NOT NULL,
+    PRIMARY KEY (front_id, point_index)
+);
+CREATE TRIGGER fronts_no_update BEFORE UPDATE ON fronts
+    BEGIN SELECT RAISE(ABORT, 'fronts are append-only'); END;
+CREATE TRIGGER fronts_no_delete BEFORE DELETE ON fronts
+    BEGIN SELECT RAISE(ABORT, 'fronts are append-only'); END;
+CREATE TRIGGER front_points_no_update BEFORE UPDATE ON front_points
+    BEGIN SELECT RAISE(ABORT, 'front points are append-only'); END;
+CREATE TRIGGER front_points_no_delete BEFORE DELETE ON front_points
+    BEGIN SELECT RAISE(ABORT, 'front points are append-only'); END;
+""",
+}
 
 
 def _now():
@@ -159,6 +198,8 @@ class Store:
         try:
             with db:
                 db.executescript(_SCHEMA)
+                for v in range(2, SCHEMA_VERSION + 1):
+                    db.executescript(_MIGRATIONS[v])
             with db:
                 db.execute(f"PRAGMA application_id = {_APPLICATION_ID}")
                 db.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
@@ -225,11 +266,19 @@ class Store:
         return db
 
     def _migrate(self, version):
-        with self._transaction():
-            for v in range(version + 1, SCHEMA_VERSION + 1):
-                self._db.executescript(_MIGRATIONS[v])
-            self._db.execute(f"PRAGMA user_version = {SCHEMA_VERSION}")
-            self._db.execute("UPDATE meta SET value = ? WHERE key = 'schema_version'", (str(SCHEMA_VERSION),))
+        # One script holding BEGIN ... COMMIT: sqlite3's executescript would otherwise commit
+        # an open transaction before running, so the migration is atomic only this way.
+        script = "BEGIN IMMEDIATE;\n" + "".join(_MIGRATIONS[v] for v in range(version + 1, SCHEMA_VERSION + 1))
+        script += (f"\nPRAGMA user_version = {SCHEMA_VERSION};\n"
+                   f"UPDATE meta SET value = '{SCHEMA_VERSION}' WHERE key = 'schema_version';\nCOMMIT;\n")
+        try:
+            self._db.executescript(script)
+        except sqlite3.DatabaseError as exc:
+            if self._db.in_transaction:
+                self._db.execute("ROLLBACK")
+            self._db.close()
+            raise StoreError(f"store {self.path} could not be migrated to schema {SCHEMA_VERSION} ({exc}); "
+                             "it was left at its old version") from None
 
     def close(self):
         self._db.close()
@@ -453,6 +502,77 @@ class Store:
         if r is None:
             return None
         return r[0], _unpack(r[1], (r[4],)), _unpack(r[2], (r[5],)), _unpack(r[3], (r[4], r[5]))
+
+    # -- search fronts (schema 2) ---------------------------------------------------------
+    def record_front(self, *, model_version, objectives, reference, hypervolume, n_trials, n_feasible, study,
+                     settings, points, code_version, run_id=None):
+        """Store one Pareto front and its points in one transaction; return its ``front_id``.
+
+        Parameters
+        ----------
+        model_version : int
+            The surrogate version the front was predicted with.
+        objectives : list of dict
+            ``{"target", "direction", ...}`` per objective, in order.
+        reference : list of float
+            The hypervolume reference point (minimisation form, model space).
+        hypervolume : float
+        n_trials, n_feasible : int
+        study : dict
+            Where the optimisation study lives (file, name, sampler, seed).
+        settings : dict
+            Every setting of the search (window, cautious k, flag thresholds, tolerances).
+        points : list of dict
+            Each with ``trial_number``, ``params``, ``objectives``, ``predictions``,
+            ``flags`` and ``robustness`` (JSON-ready).
+        """
+        points = list(points)
+
+        def fn(db):
+            cur = db.execute(
+                "INSERT INTO fronts(created_utc, model_version, objectives_json, reference_json, hypervolume, n_trials, "
+                "n_feasible, n_points, study_json, settings_json, code_version, run_id) "
+                "VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                (_now(), int(model_version), json.dumps(objectives), json.dumps([float(v) for v in reference]),
+                 float(hypervolume), int(n_trials), int(n_feasible), len(points), json.dumps(study, sort_keys=True),
+                 json.dumps(settings, sort_keys=True), code_version, run_id),
+            )
+            front_id = cur.lastrowid
+            db.executemany(
+                "INSERT INTO front_points VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+                [(front_id, i, int(p["trial_number"]), json.dumps(p["params"]), json.dumps(p["objectives"]),
+                  json.dumps(p["predictions"]), json.dumps(p["flags"]), json.dumps(p["robustness"]))
+                 for i, p in enumerate(points)],
+            )
+            return front_id
+
+        return self._write(fn)
+
+    def fronts(self):
+        """Recorded fronts, oldest first (list of dicts, JSON fields decoded)."""
+        cols = ("front_id", "created_utc", "model_version", "objectives_json", "reference_json", "hypervolume", "n_trials",
+                "n_feasible", "n_points", "study_json", "settings_json", "code_version", "run_id")
+        out = []
+        for r in self._db.execute(f"SELECT {', '.join(cols)} FROM fronts ORDER BY front_id"):
+            row = dict(zip(cols, r))
+            for k in [c for c in cols if c.endswith("_json")]:
+                row[k.removesuffix("_json")] = json.loads(row.pop(k))
+            out.append(row)
+        return out
+
+    def front_points(self, front_id):
+        """The points of front ``front_id`` in their recorded order (list of dicts)."""
+        if self._db.execute("SELECT 1 FROM fronts WHERE front_id = ?", (front_id,)).fetchone() is None:
+            raise StoreError(f"store {self.path}: front {front_id} does not exist")
+        rows = self._db.execute(
+            "SELECT point_index, trial_number, params_json, objectives_json, predictions_json, flags_json, robustness_json "
+            "FROM front_points WHERE front_id = ? ORDER BY point_index", (front_id,)
+        ).fetchall()
+        return [
+            {"point_index": r[0], "trial_number": r[1], "params": json.loads(r[2]), "objectives": json.loads(r[3]),
+             "predictions": json.loads(r[4]), "flags": json.loads(r[5]), "robustness": json.loads(r[6])}
+            for r in rows
+        ]
 
     def fingerprint(self):
         """SHA-256 (hex) over finished designs' ids, parameters and figures, in id order."""
