@@ -141,7 +141,9 @@ def test_ctrl_c_stops_cleanly_and_says_how_to_resume(tmp_path):
     toml = campaign(tmp_path, designs=40)  # long enough that the run cannot finish before the signal
     store_path = tmp_path / "tiny.sqlite"
     proc = subprocess.Popen([sys.executable, "-m", "surrogate", "generate", str(toml), "--workers", "2", "--quiet"],
-                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, start_new_session=True)
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, start_new_session=True,
+                            # a job started in the background inherits SIGINT ignored; restore it
+                            preexec_fn=lambda: signal.signal(signal.SIGINT, signal.SIG_DFL))
     deadline = time.time() + 240
     while time.time() < deadline:
         time.sleep(0.2)
