@@ -5,29 +5,17 @@ Readable in greyscale: markers and line styles carry the meaning.
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import numpy as np
 from scipy.stats import norm
+
+from ..report._figures import _pyplot
+from ..report._figures import _save as _save_png
 
 __all__ = ["draw_parity", "draw_calibration", "calibration_curve"]
 
 
-def _pyplot():
-    import matplotlib
-
-    matplotlib.use("Agg", force=False)
-    import matplotlib.pyplot as plt
-
-    return plt
-
-
 def _save(fig, path):
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    tmp = path.with_name(path.name + ".partial")
-    fig.savefig(tmp, dpi=110, bbox_inches="tight", format="png")
-    tmp.replace(path)
+    _save_png(fig, path, dpi=110)
 
 
 def _grid(n):

@@ -22,11 +22,12 @@ def _pyplot():
     return plt
 
 
-def _save(fig, path):
+def _save(fig, path, *, dpi=130):
+    """Write a PNG atomically (a partial file renamed into place)."""
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
     tmp = path.with_name(path.name + ".partial")
-    fig.savefig(tmp, dpi=130, bbox_inches="tight", format="png")
+    fig.savefig(tmp, dpi=dpi, bbox_inches="tight", format="png")
     tmp.replace(path)
 
 
