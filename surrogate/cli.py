@@ -47,6 +47,7 @@ def build_parser():
     from ._cli_models import add_model_commands
     from ._cli_search import add_search_commands
     from ._cli_simulate import add_simulate_command
+    from ._cli_verify import add_verify_commands
 
     add_materials_command(sub, _UNITS)
     add_families_command(sub, _UNITS)
@@ -54,6 +55,7 @@ def build_parser():
     add_campaign_commands(sub, _UNITS)
     add_model_commands(sub, _UNITS)
     add_search_commands(sub, _UNITS)
+    add_verify_commands(sub, _UNITS)
     return parser
 
 

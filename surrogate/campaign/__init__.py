@@ -3,11 +3,12 @@
 from ._design import design_id, sample_designs
 from ._runner import RunSummary, run_campaign
 from ._spec import CampaignFileError, CampaignSpec, load_campaign, parse_campaign
-from ._store import SCHEMA_VERSION, Source, Status, Store, StoreError
+from ._store import SCHEMA_VERSION, QueueState, Source, Status, Store, StoreError
 
 __all__ = [
     "Store",
     "Status",
+    "QueueState",
     "Source",
     "StoreError",
     "SCHEMA_VERSION",

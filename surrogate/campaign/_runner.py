@@ -25,7 +25,7 @@ from dataclasses import dataclass
 from .. import __version__
 from ._store import Status
 
-__all__ = ["run_campaign", "RunSummary"]
+__all__ = ["run_campaign", "RunSummary", "solve_jobs"]
 
 
 @dataclass(frozen=True)
@@ -153,6 +153,49 @@ class _DaskPool:
             self.cluster.close()
 
 
+def _make_pool(workers, scheduler, dask_workers):
+    if scheduler is not None or dask_workers is not None:
+        pool = _DaskPool(scheduler, dask_workers)
+        return pool, dask_workers or max(1, len(pool.client.scheduler_info().get("workers", {})))
+    slots = workers or os.cpu_count() or 1
+    return _LocalPool(slots), slots
+
+
+def solve_jobs(jobs, spec, task, *, workers=None, scheduler=None, dask_workers=None, should_stop=None):
+    """Run ``task(spec, params)`` for each ``(key, params)`` of ``jobs`` in parallel, writing nothing.
+
+    For solves that are not campaign results (a verification on a finer lattice).
+    Yields ``(key, payload, elapsed_s, None)`` for a success and ``(key, None, 0.0,
+    message)`` for a failure, in completion order; a KeyboardInterrupt stops the
+    workers and propagates.  ``should_stop`` as in :func:`run_campaign`.
+    """
+    jobs = list(jobs)
+    if not jobs:
+        return
+    pool, slots = _make_pool(workers, scheduler, dask_workers)
+    in_flight = {}
+    try:
+        while jobs or in_flight:
+            if jobs and should_stop is not None and should_stop():
+                jobs = []
+                if not in_flight:
+                    break
+            while jobs and len(in_flight) < slots:
+                key, params = jobs.pop(0)
+                in_flight[pool.submit(_guarded, task, spec, key, params, key=f"job-{key}-{time.time_ns()}")] = key
+            for fut in pool.wait_one(in_flight):
+                key = in_flight.pop(fut)
+                result = pool.outcome(fut)
+                if result[0] == "ok":
+                    yield key, result[1], result[2], None
+                else:
+                    yield key, None, 0.0, result[1]
+    except BaseException:
+        pool.close(cancel=True)
+        raise
+    pool.close()
+
+
 def run_campaign(
     store,
     spec,
@@ -164,6 +207,8 @@ def run_campaign(
     retry_failed=False,
     command="generate",
     progress=None,
+    design_ids=None,
+    should_stop=None,
 ):
     """Solve every pending design of ``store``.
 
@@ -185,6 +230,12 @@ def run_campaign(
         Also solve designs that failed before.
     progress : callable(event: dict), optional
         Called after each finished design with counts and timing.
+    design_ids : collection of str, optional
+        Solve only these designs (those of them that are pending, or failed with
+        ``retry_failed``); default every one.
+    should_stop : callable() -> bool, optional
+        Polled before each submission; once it returns True no new design is started,
+        the ones in flight finish and are recorded, the rest stay pending.
 
     Returns
     -------
@@ -193,13 +244,11 @@ def run_campaign(
     run_id = store.start_run(command, __version__)
     wanted = [Status.PENDING] + ([Status.FAILED] if retry_failed else [])
     queue = store.designs(status=wanted)
+    if design_ids is not None:
+        design_ids = set(design_ids)
+        queue = [d for d in queue if d["design_id"] in design_ids]
     total = len(queue)
-    if scheduler is not None or dask_workers is not None:
-        pool = _DaskPool(scheduler, dask_workers)
-        slots = dask_workers or max(1, len(pool.client.scheduler_info().get("workers", {})))
-    else:
-        slots = workers or os.cpu_count() or 1
-        pool = _LocalPool(slots)
+    pool, slots = _make_pool(workers, scheduler, dask_workers)
     counts = {"done": 0, "not_converged": 0, "failed": 0}
     in_flight = {}
     by_id = {d["design_id"]: d for d in queue}
@@ -209,6 +258,10 @@ def run_campaign(
     interrupted = False
     try:
         while queue or in_flight:
+            if queue and should_stop is not None and should_stop():
+                queue = []
+                if not in_flight:
+                    break
             while queue and len(in_flight) < slots:
                 # a design that was in flight when a worker died runs alone, so the one that
                 # kills its worker is found and no bystander is blamed twice

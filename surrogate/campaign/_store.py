@@ -23,7 +23,12 @@ Storage contract
    transaction; a newer one, or a file that is not a store, is refused and never
    written.  Version 2 adds the search fronts (``fronts``, ``front_points``):
    append-only, one transaction per front, guarded by triggers that refuse any
-   UPDATE or DELETE.
+   UPDATE or DELETE.  Version 3 adds the verification queue: ``queue`` (one entry
+   per design, ever: a design is never queued twice), its append-only state events
+   ``queue_events`` (``queued`` -> ``running`` -> ``done`` | ``failed``; a failed or
+   interrupted entry goes back to ``queued``), ``verifications`` (predicted vs
+   simulated, one row per entry, written with its ``done`` event) and
+   ``refine_rounds``; all guarded against UPDATE and DELETE.
 6. Thread safety: a :class:`Store` object belongs to one thread; several
    processes may open the same file (SQLite locking, a busy timeout of 30 s).
 """
@@ -43,9 +48,9 @@ import numpy as np
 
 from ..errors import StoreError
 
-__all__ = ["Store", "Status", "Source", "StoreError", "SCHEMA_VERSION"]
+__all__ = ["Store", "Status", "Source", "QueueState", "StoreError", "SCHEMA_VERSION"]
 
-SCHEMA_VERSION = 2
+SCHEMA_VERSION = 3
 _APPLICATION_ID = 0x414E5453  # "ANTS": marks our files in the SQLite header
 
 
@@ -61,6 +66,19 @@ class Status(str, enum.Enum):
     def is_finished(self):
         """True for states whose result is final (done, not_converged)."""
         return self in (Status.DONE, Status.NOT_CONVERGED)
+
+
+class QueueState(str, enum.Enum):
+    """State of a verification-queue entry."""
+
+    QUEUED = "queued"
+    RUNNING = "running"
+    DONE = "done"
+    FAILED = "failed"
+
+    def is_finished(self):
+        """True for ``done`` (a failed entry may be queued again)."""
+        return self is QueueState.DONE
 
 
 class Source(str, enum.Enum):
@@ -158,6 +176,71 @@ CREATE TRIGGER front_points_no_update BEFORE UPDATE ON front_points
     BEGIN SELECT RAISE(ABORT, 'front points are append-only'); END;
 CREATE TRIGGER front_points_no_delete BEFORE DELETE ON front_points
     BEGIN SELECT RAISE(ABORT, 'front points are append-only'); END;
+""",
+    3: """
+CREATE TABLE queue (
+    entry_id INTEGER PRIMARY KEY AUTOINCREMENT,
+    design_id TEXT NOT NULL UNIQUE,
+    params_json TEXT NOT NULL,
+    reason TEXT NOT NULL,
+    front_id INTEGER REFERENCES fronts(front_id),
+    point_index INTEGER,
+    model_version INTEGER,
+    predicted_json TEXT,
+    refine_round INTEGER,
+    created_utc TEXT NOT NULL
+);
+CREATE TABLE queue_events (
+    event_id INTEGER PRIMARY KEY AUTOINCREMENT,
+    entry_id INTEGER NOT NULL REFERENCES queue(entry_id),
+    state TEXT NOT NULL CHECK (state IN ('queued', 'running', 'done', 'failed')),
+    at_utc TEXT NOT NULL,
+    message TEXT NOT NULL DEFAULT '',
+    run_id INTEGER REFERENCES runs(run_id)
+);
+CREATE INDEX queue_events_by_entry ON queue_events(entry_id, event_id);
+CREATE VIEW queue_status AS
+    SELECT q.*, e.state, e.message, e.at_utc
+    FROM queue q JOIN queue_events e ON e.event_id = (
+        SELECT MAX(event_id) FROM queue_events WHERE entry_id = q.entry_id);
+CREATE TABLE verifications (
+    entry_id INTEGER PRIMARY KEY REFERENCES queue(entry_id),
+    design_id TEXT NOT NULL,
+    spacing_nm REAL NOT NULL,
+    simulated_json TEXT NOT NULL,
+    comparison_json TEXT NOT NULL,
+    fine_spacing_nm REAL,
+    fine_json TEXT,
+    finished_utc TEXT NOT NULL,
+    run_id INTEGER REFERENCES runs(run_id)
+);
+CREATE TABLE refine_rounds (
+    round_id INTEGER PRIMARY KEY AUTOINCREMENT,
+    run_id INTEGER REFERENCES runs(run_id),
+    round INTEGER NOT NULL,
+    front_id INTEGER REFERENCES fronts(front_id),
+    model_version INTEGER,
+    n_verified INTEGER NOT NULL,
+    hypervolume_simulated REAL,
+    metrics_json TEXT NOT NULL,
+    created_utc TEXT NOT NULL
+);
+CREATE TRIGGER queue_no_update BEFORE UPDATE ON queue
+    BEGIN SELECT RAISE(ABORT, 'queue entries are append-only'); END;
+CREATE TRIGGER queue_no_delete BEFORE DELETE ON queue
+    BEGIN SELECT RAISE(ABORT, 'queue entries are append-only'); END;
+CREATE TRIGGER queue_events_no_update BEFORE UPDATE ON queue_events
+    BEGIN SELECT RAISE(ABORT, 'queue events are append-only'); END;
+CREATE TRIGGER queue_events_no_delete BEFORE DELETE ON queue_events
+    BEGIN SELECT RAISE(ABORT, 'queue events are append-only'); END;
+CREATE TRIGGER verifications_no_update BEFORE UPDATE ON verifications
+    BEGIN SELECT RAISE(ABORT, 'verifications are append-only'); END;
+CREATE TRIGGER verifications_no_delete BEFORE DELETE ON verifications
+    BEGIN SELECT RAISE(ABORT, 'verifications are append-only'); END;
+CREATE TRIGGER refine_rounds_no_update BEFORE UPDATE ON refine_rounds
+    BEGIN SELECT RAISE(ABORT, 'refine rounds are append-only'); END;
+CREATE TRIGGER refine_rounds_no_delete BEFORE DELETE ON refine_rounds
+    BEGIN SELECT RAISE(ABORT, 'refine rounds are append-only'); END;
 """,
 }
 
@@ -573,6 +656,147 @@ class Store:
              "predictions": json.loads(r[4]), "flags": json.loads(r[5]), "robustness": json.loads(r[6])}
             for r in rows
         ]
+
+    # -- verification queue (schema 3) ----------------------------------------------------
+    def enqueue(self, entries, *, run_id=None):
+        """Queue designs for verification in one transaction; return ``(added, skipped)``.
+
+        Parameters
+        ----------
+        entries : iterable of dict
+            Each with ``design_id``, ``params``, ``reason`` and optionally ``front_id``,
+            ``point_index``, ``model_version``, ``predicted`` (JSON-ready) and
+            ``refine_round``.
+
+        Returns
+        -------
+        added : list of int
+            New entry ids (and failed entries queued again), in input order.
+        skipped : list of (str, str)
+            ``(design_id, why)`` for designs already queued, running or verified.
+        """
+        entries = list(entries)
+
+        def fn(db):
+            added, skipped, seen = [], [], set()
+            now = _now()
+            for e in entries:
+                did = e["design_id"]
+                if did in seen:
+                    skipped.append((did, "listed twice in this request"))
+                    continue
+                seen.add(did)
+                row = db.execute("SELECT entry_id, state FROM queue_status WHERE design_id = ?", (did,)).fetchone()
+                if row is not None:
+                    if row[1] == QueueState.FAILED.value:
+                        db.execute("INSERT INTO queue_events(entry_id, state, at_utc, message, run_id) "
+                                   "VALUES (?, 'queued', ?, 'queued again after a failure', ?)", (row[0], now, run_id))
+                        added.append(row[0])
+                    else:
+                        skipped.append((did, f"already in the queue as entry {row[0]} ({row[1]})"))
+                    continue
+                cur = db.execute(
+                    "INSERT INTO queue(design_id, params_json, reason, front_id, point_index, model_version, predicted_json, "
+                    "refine_round, created_utc) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                    (did, json.dumps(e["params"], sort_keys=True), str(e["reason"]), e.get("front_id"), e.get("point_index"),
+                     e.get("model_version"), None if e.get("predicted") is None else json.dumps(e["predicted"], sort_keys=True),
+                     e.get("refine_round"), now),
+                )
+                db.execute("INSERT INTO queue_events(entry_id, state, at_utc, run_id) VALUES (?, 'queued', ?, ?)",
+                           (cur.lastrowid, now, run_id))
+                added.append(cur.lastrowid)
+            return added, skipped
+
+        return self._write(fn)
+
+    def queue_entries(self, state=None):
+        """Queue entries with their current state, oldest first (list of dicts)."""
+        cols = ("entry_id", "design_id", "params_json", "reason", "front_id", "point_index", "model_version",
+                "predicted_json", "refine_round", "created_utc", "state", "message", "at_utc")
+        sql = f"SELECT {', '.join(cols)} FROM queue_status"
+        args = ()
+        if state is not None:
+            states = [QueueState(s).value for s in (state if isinstance(state, (list, tuple, set)) else [state])]
+            sql += f" WHERE state IN ({', '.join('?' * len(states))})"
+            args = tuple(states)
+        out = []
+        for r in self._db.execute(sql + " ORDER BY entry_id", args):
+            row = dict(zip(cols, r))
+            row["params"] = json.loads(row.pop("params_json"))
+            pj = row.pop("predicted_json")
+            row["predicted"] = None if pj is None else json.loads(pj)
+            row["state"] = QueueState(row["state"])
+            out.append(row)
+        return out
+
+    def mark_entries(self, entry_ids, state, message="", run_id=None):
+        """Append one state event per entry (``queued``, ``running`` or ``failed``) in one transaction.
+
+        ``done`` goes through :meth:`record_verification`, together with its data.
+        """
+        state = QueueState(state)
+        if state is QueueState.DONE:
+            raise StoreError("a done entry is recorded with record_verification, together with its data")
+        now = _now()
+        self._write(lambda db: db.executemany(
+            "INSERT INTO queue_events(entry_id, state, at_utc, message, run_id) VALUES (?, ?, ?, ?, ?)",
+            [(int(i), state.value, now, message[:2000], run_id) for i in entry_ids]))
+
+    def record_verification(self, entry_id, *, design_id, spacing_nm, simulated, comparison, fine_spacing_nm=None,
+                            fine=None, run_id=None):
+        """Store one verification (predicted vs simulated) with the entry's ``done`` event, in one transaction."""
+        now = _now()
+
+        def fn(db):
+            row = db.execute("SELECT state FROM queue_status WHERE entry_id = ?", (entry_id,)).fetchone()
+            if row is None:
+                raise StoreError(f"store {self.path}: queue entry {entry_id} does not exist")
+            if row[0] == QueueState.DONE.value:
+                raise StoreError(f"store {self.path}: queue entry {entry_id} is already verified; results are never rewritten")
+            db.execute(
+                "INSERT INTO verifications VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                (int(entry_id), design_id, float(spacing_nm), json.dumps(simulated, sort_keys=True),
+                 json.dumps(comparison, sort_keys=True), None if fine_spacing_nm is None else float(fine_spacing_nm),
+                 None if fine is None else json.dumps(fine, sort_keys=True), now, run_id),
+            )
+            db.execute("INSERT INTO queue_events(entry_id, state, at_utc, run_id) VALUES (?, 'done', ?, ?)",
+                       (int(entry_id), now, run_id))
+
+        self._write(fn)
+
+    def verifications(self):
+        """Finished verifications, oldest first (list of dicts, JSON fields decoded)."""
+        cols = ("entry_id", "design_id", "spacing_nm", "simulated_json", "comparison_json", "fine_spacing_nm",
+                "fine_json", "finished_utc", "run_id")
+        out = []
+        for r in self._db.execute(f"SELECT {', '.join(cols)} FROM verifications ORDER BY entry_id"):
+            row = dict(zip(cols, r))
+            for k in ("simulated_json", "comparison_json", "fine_json"):
+                v = row.pop(k)
+                row[k.removesuffix("_json")] = None if v is None else json.loads(v)
+            out.append(row)
+        return out
+
+    def record_refine_round(self, *, round, front_id, model_version, n_verified, hypervolume_simulated, metrics,
+                            run_id=None):
+        """Append one refine round's summary; return its ``round_id``."""
+        return self._write(lambda db: db.execute(
+            "INSERT INTO refine_rounds(run_id, round, front_id, model_version, n_verified, hypervolume_simulated, "
+            "metrics_json, created_utc) VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+            (run_id, int(round), front_id, model_version, int(n_verified),
+             None if hypervolume_simulated is None else float(hypervolume_simulated),
+             json.dumps(metrics, sort_keys=True), _now())).lastrowid)
+
+    def refine_rounds(self):
+        """Recorded refine rounds, oldest first (list of dicts)."""
+        cols = ("round_id", "run_id", "round", "front_id", "model_version", "n_verified", "hypervolume_simulated",
+                "metrics_json", "created_utc")
+        out = []
+        for r in self._db.execute(f"SELECT {', '.join(cols)} FROM refine_rounds ORDER BY round_id"):
+            row = dict(zip(cols, r))
+            row["metrics"] = json.loads(row.pop("metrics_json"))
+            out.append(row)
+        return out
 
     def fingerprint(self):
         """SHA-256 (hex) over finished designs' ids, parameters and figures, in id order."""

@@ -169,12 +169,17 @@ def test_fronts_are_append_only_and_old_stores_migrate(fresh_store, tmp_path):
     old = tmp_path / "old.sqlite"
     Store.create(old, spec={"family": "rod"}, code_version="t").close()
     db = sqlite3.connect(old)
-    db.executescript("DROP TRIGGER fronts_no_update; DROP TRIGGER fronts_no_delete; DROP TRIGGER front_points_no_update;"
-                     "DROP TRIGGER front_points_no_delete; DROP TABLE front_points; DROP TABLE fronts;"
+    # drop what schemas 2 and 3 added (every trigger, the queue's view and tables, the fronts)
+    triggers = [r[0] for r in db.execute("SELECT name FROM sqlite_master WHERE type = 'trigger'")]
+    db.executescript("".join(f"DROP TRIGGER {t};" for t in triggers) +
+                     "DROP VIEW queue_status; DROP TABLE refine_rounds; DROP TABLE verifications; "
+                     "DROP TABLE queue_events; DROP TABLE queue;")
+    db.executescript("DROP TABLE front_points; DROP TABLE fronts;"
                      "PRAGMA user_version = 1; UPDATE meta SET value = '1' WHERE key = 'schema_version';")
     db.close()
     with Store.open(old) as store:
-        assert store.fronts() == [] and store.meta("schema_version") == str(SCHEMA_VERSION) == "2"
+        assert store.fronts() == [] and store.meta("schema_version") == str(SCHEMA_VERSION) == "3"
+        assert store.queue_entries() == [] and store.verifications() == [] and store.refine_rounds() == []
     with pytest.raises(Exception, match="front 5 does not exist"):
         with Store.open(old) as store:
             store.front_points(5)
