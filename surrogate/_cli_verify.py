@@ -120,7 +120,9 @@ def _g(v, spec=".4g"):
 def _progress(ev):
     stage = ev.get("stage", "")
     if "finished" in ev:
-        sys.stderr.write(f"\r{stage}: {ev['finished']}/{ev['total']} designs   ")
+        eta = f", about {ev['eta_s']:.0f} s left" if ev.get("eta_s") else ""
+        where = f"round {ev['round']}/{ev['rounds']}, " if "round" in ev else ""
+        sys.stderr.write(f"\r{where}{stage}: {ev['finished']}/{ev['total']} designs{eta}   ")
         if ev["finished"] == ev["total"]:
             sys.stderr.write("\n")
     else:

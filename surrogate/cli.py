@@ -45,6 +45,7 @@ def build_parser():
     from ._cli_families import add_families_command
     from ._cli_materials import add_materials_command
     from ._cli_models import add_model_commands
+    from ._cli_report import add_report_command
     from ._cli_search import add_search_commands
     from ._cli_simulate import add_simulate_command
     from ._cli_verify import add_verify_commands
@@ -55,6 +56,7 @@ def build_parser():
     add_campaign_commands(sub, _UNITS)
     add_model_commands(sub, _UNITS)
     add_search_commands(sub, _UNITS)
+    add_report_command(sub, _UNITS)
     add_verify_commands(sub, _UNITS)
     return parser
 

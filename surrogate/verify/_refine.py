@@ -184,7 +184,9 @@ def refine_store(store_path, *, rounds, batch, n_trials=2000, seed=None, window_
         if progress is not None:
             progress({"stage": "verify", "round": r, "rounds": rounds, "queued": queued})
         ver = verify_store(store_path, spacing_nm=spacing_nm, workers=workers, scheduler=scheduler,
-                           dask_workers=dask_workers, task=task, code_version=code_version)
+                           dask_workers=dask_workers, task=task, code_version=code_version,
+                           progress=None if progress is None else (lambda ev, r=r: progress({**ev, "round": r,
+                                                                                               "rounds": rounds})))
         if ver.interrupted:
             raise KeyboardInterrupt
         metrics = round_metrics(list(ver.comparisons.values()))
