@@ -90,3 +90,32 @@ def test_unreadable_files(tmp_path):
         load_campaign(tmp_path / "missing.toml")
     with pytest.raises(CampaignFileError, match="not valid TOML"):
         load_campaign(write(tmp_path, "name = "))
+
+
+def _table(path):
+    # Johnson & Christy gold rows near 800 nm, rounded (from memory; only the file's form matters here)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    path.write_text("wavelength_nm,n,k\n550,0.43,2.46\n700,0.13,4.10\n850,0.16,5.30\n1050,0.22,6.90\n")
+    return path
+
+
+def test_a_table_inside_datasets_is_read(tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    _table(tmp_path / "datasets" / "au.csv")
+    spec = load_campaign(write(tmp_path, GOOD.replace('material = "gold"', 'material = "datasets/au.csv"')))
+    assert spec.material == "datasets/au.csv"
+
+
+@pytest.mark.parametrize("name", ["../au.csv", "/tmp/elsewhere/au.csv", "datasets/../au.csv", "datasets/link/au.csv"])
+def test_a_table_outside_the_project_folders_is_refused_unread(tmp_path, monkeypatch, name):
+    # security rule of the product (no outside source): files named in a shared campaign file stay
+    # inside datasets/ or reports/, symbolic links resolved
+    project = tmp_path / "project"
+    (project / "datasets").mkdir(parents=True)
+    monkeypatch.chdir(project)
+    outside = _table(tmp_path / "au.csv")
+    (project / "datasets" / "link").symlink_to(tmp_path)
+    if name.startswith("/tmp/elsewhere"):
+        name = str(outside)
+    with pytest.raises(CampaignFileError, match=r"must lie inside the project's datasets/ or reports/"):
+        load_campaign(write(project, GOOD.replace('material = "gold"', f'material = "{name}"')))
