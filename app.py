@@ -1,10 +1,17 @@
-"""Streamlit entry point: routes to page functions that live in the package.
+"""Streamlit entry point: routes to the page functions of :mod:`surrogate.ui`.
 
-Run with ``streamlit run app.py``.  The pages (Pareto front, training data,
-models, verification queue) land with the app; until then this shows the
-available materials so the entry point is exercised.
+Start it with ``surrogate app STORE`` (or ``surrogate demo``); the store path reaches
+the pages through the ``SURROGATE_STORE`` environment variable.
 """
 
-from surrogate.ui import placeholder_page
+import streamlit as st
 
-placeholder_page()
+from surrogate.ui import front_page, models_page, queue_page, training_page
+
+st.set_page_config(page_title="Antenna surrogate", layout="wide")
+st.navigation([
+    st.Page(front_page, title="Front", url_path="front", default=True),
+    st.Page(training_page, title="Training data", url_path="training-data"),
+    st.Page(models_page, title="Models", url_path="models"),
+    st.Page(queue_page, title="Queue", url_path="queue"),
+]).run()

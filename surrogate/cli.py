@@ -41,6 +41,7 @@ def build_parser():
     )
     parser.add_argument("--version", action="version", version=f"surrogate {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    from ._cli_app import add_app_commands
     from ._cli_campaign import add_campaign_commands
     from ._cli_families import add_families_command
     from ._cli_materials import add_materials_command
@@ -58,6 +59,7 @@ def build_parser():
     add_search_commands(sub, _UNITS)
     add_report_command(sub, _UNITS)
     add_verify_commands(sub, _UNITS)
+    add_app_commands(sub, _UNITS)
     return parser
 
 
