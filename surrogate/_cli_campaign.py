@@ -59,7 +59,11 @@ def _check_count(name, value, low=1, high=100_000):
         raise InvalidParameterError(f"{name} must be in [{low}, {high}]; got {value}")
 
 
+_OPEN_LINE = {"open": False}  # the progress bar is on screen without its newline
+
+
 def _bar(event):
+    _OPEN_LINE["open"] = True
     width = 30
     done, total = event["finished"], max(event["total"], 1)
     filled = int(width * done / total)
@@ -129,12 +133,18 @@ def run_generate(args):
               + ", ".join(f"{k} {v}" for k, v in counts.items() if v))
         if args.no_run:
             return 0
+        _OPEN_LINE["open"] = False
         summary = run_campaign(
             store, spec.to_dict(), evaluate_design, workers=args.workers, scheduler=args.scheduler,
             dask_workers=args.dask_workers, retry_failed=args.retry_failed,
             progress=None if args.quiet else _bar,
         )
+    except BaseException:
+        if _OPEN_LINE["open"]:  # the error gets a line of its own
+            sys.stderr.write("\n")
+        raise
     finally:
+        _OPEN_LINE["open"] = False
         store.close()
     if not args.quiet:
         sys.stderr.write("\n")

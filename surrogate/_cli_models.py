@@ -129,9 +129,16 @@ def run_train(args):
         check_int("--workers", args.workers, low=1, high=256)
     if args.min_per_parameter is not None:
         check_int("--min-per-parameter", args.min_per_parameter, low=1, high=1000)
-    card = train_store(args.store, targets=_comma_list(args.targets), seed=args.seed, cv_folds=args.folds,
-                       n_restarts=args.restarts, drop_missing=args.drop_missing,
-                       min_designs_per_parameter=args.min_per_parameter, n_jobs=args.workers, plots=not args.no_plots)
+    try:
+        card = train_store(args.store, targets=_comma_list(args.targets), seed=args.seed, cv_folds=args.folds,
+                           n_restarts=args.restarts, drop_missing=args.drop_missing,
+                           min_designs_per_parameter=args.min_per_parameter, n_jobs=args.workers,
+                           plots=not args.no_plots)
+    except OSError as exc:  # a read-only or full models folder: no version was added
+        from .models import ModelBundleError, bundles_folder
+
+        raise ModelBundleError(f"model folder {bundles_folder(args.store)} cannot be written ({exc.strerror}: "
+                               f"{exc.filename}); no model version was added") from None
     with Store.open(args.store, readonly=True) as store:
         rows = list_versions(store)
     if args.json:

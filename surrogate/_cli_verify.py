@@ -117,17 +117,35 @@ def _g(v, spec=".4g"):
     return "-" if v is None or (isinstance(v, float) and not math.isfinite(v)) else format(v, spec)
 
 
+_OPEN_LINE = {"open": False}  # a progress line is on screen without its newline
+
+
 def _progress(ev):
     stage = ev.get("stage", "")
     if "finished" in ev:
         eta = f", about {ev['eta_s']:.0f} s left" if ev.get("eta_s") else ""
         where = f"round {ev['round']}/{ev['rounds']}, " if "round" in ev else ""
         sys.stderr.write(f"\r{where}{stage}: {ev['finished']}/{ev['total']} designs{eta}   ")
-        if ev["finished"] == ev["total"]:
+        _OPEN_LINE["open"] = ev["finished"] != ev["total"]
+        if not _OPEN_LINE["open"]:
             sys.stderr.write("\n")
     else:
         sys.stderr.write(f"round {ev.get('round')}/{ev.get('rounds')}: {stage}\n")
     sys.stderr.flush()
+
+
+def _with_progress(fn, **kwargs):
+    """Run ``fn``; if it fails, end an open progress line so that the error gets a line of its own."""
+    _OPEN_LINE["open"] = False
+    try:
+        return fn(**kwargs)
+    except BaseException:
+        if _OPEN_LINE["open"]:
+            sys.stderr.write("\n")
+            sys.stderr.flush()
+        raise
+    finally:
+        _OPEN_LINE["open"] = False
 
 
 def run_queue(args):
@@ -169,8 +187,8 @@ def run_verify(args):
 
     if args.spacing_nm is not None:
         check_real("--spacing-nm", args.spacing_nm, low=0.0, low_open=True)
-    rep = verify_store(args.store, spacing_nm=args.spacing_nm, progress=None if args.json else _progress,
-                       code_version=__version__, **_runner(args))
+    rep = _with_progress(verify_store, store_path=args.store, spacing_nm=args.spacing_nm,
+                         progress=None if args.json else _progress, code_version=__version__, **_runner(args))
     if args.json:
         json.dump({"verified": rep.verified, "failed": [list(f) for f in rep.failed], "requeued": rep.requeued,
                    "comparisons": {str(k): v for k, v in rep.comparisons.items()}, "spacing_nm": rep.spacing_nm,
@@ -200,9 +218,9 @@ def run_refine(args):
     from .verify import refine_store
 
     window = check_real("--window-nm", args.window_nm, low=0.0, high=1000.0, low_open=True)
-    rounds = refine_store(args.store, rounds=args.rounds, batch=args.batch, n_trials=args.trials, seed=args.seed,
-                          window_nm=window, spacing_nm=args.spacing_nm, progress=None if args.json else _progress,
-                          code_version=__version__, **_runner(args))
+    rounds = _with_progress(refine_store, store_path=args.store, rounds=args.rounds, batch=args.batch,
+                            n_trials=args.trials, seed=args.seed, window_nm=window, spacing_nm=args.spacing_nm,
+                            progress=None if args.json else _progress, code_version=__version__, **_runner(args))
     if args.json:
         json.dump([r.__dict__ for r in rounds], sys.stdout, indent=2)
         sys.stdout.write("\n")

@@ -31,6 +31,11 @@ Storage contract
    ``refine_rounds``; all guarded against UPDATE and DELETE.
 6. Thread safety: a :class:`Store` object belongs to one thread; several
    processes may open the same file (SQLite locking, a busy timeout of 30 s).
+7. A store whose file or folder cannot be written is refused for writing up
+   front, in one message; it still opens read-only (as immutable when its folder
+   cannot be written and no WAL holds commits).  A write that fails (disk full,
+   I/O error) rolls back its whole transaction and raises one :class:`StoreError`
+   naming SQLite's reason.
 """
 
 from __future__ import annotations
@@ -38,6 +43,7 @@ from __future__ import annotations
 import enum
 import hashlib
 import json
+import os
 import sqlite3
 import zlib
 from contextlib import contextmanager
@@ -309,9 +315,12 @@ class Store:
         path = Path(path)
         if not path.is_file():
             raise StoreError(f"store {path} does not exist; create it with 'surrogate generate'")
+        if not readonly and not (os.access(path, os.W_OK) and os.access(path.parent, os.W_OK)):
+            raise StoreError(f"store {path} is read-only (its file or folder cannot be written); nothing was written; "
+                             "copy the store and its .models folder to a writable folder")
         try:
             if readonly:
-                db = sqlite3.connect(f"file:{path}?mode=ro", uri=True, timeout=30.0, isolation_level=None)
+                db = sqlite3.connect(cls._readonly_uri(path), uri=True, timeout=30.0, isolation_level=None)
             else:
                 db = cls._connect(path)
             app_id = db.execute("PRAGMA application_id").fetchone()[0]
@@ -338,6 +347,16 @@ class Store:
             db.close()
             raise StoreError(f"store {path} is corrupt ({exc}); it was left untouched") from None
         return store
+
+    @staticmethod
+    def _readonly_uri(path):
+        # In a folder nobody can write (a read-only file system or share) SQLite cannot create the
+        # WAL index it reads through; as nothing can change the file there, read it as immutable,
+        # unless a WAL holds commits not yet copied into the file (immutable would not see them).
+        wal = Path(f"{path}-wal")
+        if not os.access(path.parent, os.W_OK) and not (wal.exists() and wal.stat().st_size > 0):
+            return f"file:{path}?mode=ro&immutable=1"
+        return f"file:{path}?mode=ro"
 
     @staticmethod
     def _connect(path):
@@ -381,7 +400,10 @@ class Store:
         try:
             yield self._db
         except BaseException:
-            self._db.execute("ROLLBACK")
+            # SQLite has already rolled back after some errors (disk full, I/O error): a second
+            # ROLLBACK would raise and hide the real cause
+            if self._db.in_transaction:
+                self._db.execute("ROLLBACK")
             raise
         try:
             self._db.execute("COMMIT")

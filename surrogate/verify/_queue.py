@@ -140,9 +140,12 @@ def enqueue(store, *, front_top=None, flagged=False, design_ids=(), points=(), f
     ------
     InvalidParameterError
         Nothing asked for, an unknown design or point, a store with no front.
+    ModelBundleError
+        The store has models but the newest cannot be trusted (tampered, another store's);
+        nothing is queued.
     """
     from ..campaign import design_id as content_id
-    from ..models import ModelBundleError, load_bundle
+    from ..models import list_versions, load_bundle
 
     if reason is not None and reason not in REASONS:
         raise InvalidParameterError(f"reason must be one of {', '.join(REASONS)}; got {reason!r}")
@@ -177,10 +180,9 @@ def enqueue(store, *, front_top=None, flagged=False, design_ids=(), points=(), f
                 raise InvalidParameterError(f"design must be a design id of store {store.path}; got {did!r} "
                                             "(list them with 'surrogate export')")
             chosen.append((did, known[did]["params"], reason or "design", None, None))
-    try:
-        bundle = load_bundle(store, allow_stale=True)
-    except ModelBundleError:
-        bundle = None
+    # no model yet: entries without predictions; a model that cannot be trusted (tampered, another
+    # store's) is refused, never silently replaced by no prediction
+    bundle = load_bundle(store, allow_stale=True) if list_versions(store) else None
     predicted = [None] * len(chosen)
     if bundle is not None and chosen:
         predicted = prediction_record(bundle.model, [c[1] for c in chosen])
