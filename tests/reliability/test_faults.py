@@ -22,6 +22,8 @@ from surrogate.verify import enqueue, verify_store
 from tests.verify.synthetic import make_store, rod_task
 
 from .audit import assert_kept, audit, sha256, tree_digest
+from tests.campaign.test_generate_cli import TINY
+
 from .conftest import FAST_TRAINING
 from .slow_tasks import raise_above_width
 
@@ -229,30 +231,8 @@ def test_read_only_file_system_reads_work_and_writes_are_refused_in_one_line(tmp
     audit(store)
 
 
-_BOX_CAMPAIGN = """
-name = "box-full"
-family = "box"
-designs = 60
-seed = 3
-
-[bounds]
-length_nm = [30.0, 60.0]
-width_nm = [15.0, 25.0]
-
-[fixed]
-thickness_nm = 20.0
-
-[optics]
-material = "gold"
-medium_index = 1.0
-laser_nm = 700.0
-hotspot_offset_nm = 8.0
-
-[solver]
-spacing_nm = 5.0
-wavelengths_nm = "600:800:100"
-tol = 1e-4
-"""
+# the tiny box campaign of the generate tests, with 60 designs
+_BOX_CAMPAIGN = TINY.format(designs=60).replace('name = "tiny"', 'name = "box-full"')
 
 
 def test_full_disk_during_generate_is_one_line_after_the_bar_and_resumes(tmp_path, full_disk, capsys, monkeypatch):
