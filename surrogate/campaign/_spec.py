@@ -41,6 +41,7 @@ import tomllib
 from dataclasses import asdict, dataclass
 from pathlib import Path
 
+from .._paths import outside_project
 from .._validation import parse_wavelength_range
 from ..errors import InvalidParameterError, SurrogateError
 
@@ -240,9 +241,9 @@ def parse_campaign(data, *, source="campaign"):
             if _is_number(laser) and not wl[0] <= laser <= wl[-1]:
                 problems.append(f"optics.laser_nm = {laser!r}: must lie inside solver.wavelengths_nm [{wl[0]:g}, {wl[-1]:g}] nm")
     if isinstance(sections.get("material"), str) and sections["material"].strip().lower().endswith(".csv"):
-        outside = _outside_project(sections["material"].strip())
+        outside = outside_project(sections["material"].strip(), what="a table named in a campaign file")
         if outside:
-            problems.append(f"optics.material = {sections['material']!r}: {outside}")
+            problems.append(f"optics.material = {sections['material']!r}: {outside}; copy the table into datasets/")
             sections["material"] = None  # not read
     if isinstance(sections.get("material"), str):
         from ..catalog import get_material
@@ -263,30 +264,6 @@ def parse_campaign(data, *, source="campaign"):
         spacing_nm=float(sections["spacing_nm"]), wavelengths_nm=sections["wavelengths_nm"],
         tol=float(sections["tol"]), max_iter=int(sections["max_iter"]), polarizability=sections["polarizability"],
     )
-
-
-#: Folders (relative to the working directory, the project root) a campaign file may name files in.
-PROJECT_DATA_FOLDERS = ("datasets", "reports")
-
-
-def _outside_project(name):
-    """Why a table path named in a campaign file is refused ("" when it is allowed).
-
-    A campaign file may be shared; the files it names must stay inside the project's
-    ``datasets/`` or ``reports/`` (symbolic links resolved), so a file cannot make the
-    program read elsewhere.  Files given on the command line are not limited.
-    """
-    target = Path(name)
-    if not target.is_absolute():
-        target = Path.cwd() / target
-    target = target.resolve()
-    for folder in PROJECT_DATA_FOLDERS:
-        root = (Path.cwd() / folder).resolve()
-        if target == root or root in target.parents:
-            return ""
-    return (f"a table named in a campaign file must lie inside the project's "
-            f"{' or '.join(f + '/' for f in PROJECT_DATA_FOLDERS)} (relative to {Path.cwd()}); "
-            f"got {target}; copy the table into datasets/")
 
 
 def load_campaign(path):

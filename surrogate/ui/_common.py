@@ -2,10 +2,13 @@
 
 from __future__ import annotations
 
+import os
+
 import streamlit as st
 
+from .._paths import outside_project
 from ..errors import SurrogateError
-from ._data import store_path, store_view
+from ._data import STORE_ENV, store_path, store_view
 
 __all__ = ["page_store", "need_designs", "note_being_written", "fmt"]
 
@@ -35,8 +38,14 @@ def page_store():
         typed = st.text_input("Store file", value=str(current) if current else "", key="store_field",
                               help="A campaign store (.sqlite) made by 'surrogate generate'.")
         if typed and typed != (str(current) if current else ""):
-            st.session_state["store_path"] = typed
-            current = store_path()
+            refused = "" if typed == os.environ.get(STORE_ENV) else outside_project(typed, what="a store typed here")
+            if refused:
+                # a path typed into the app stays inside the project's data folders; any other
+                # store is opened by giving it on the command line (surrogate app STORE)
+                st.error(f"{refused}; to open another store, start the app with `surrogate app STORE`.")
+            else:
+                st.session_state["store_path"] = typed
+                current = store_path()
     if current is None:
         st.info("No store chosen. Start the app with `surrogate app STORE`, run `surrogate demo` for the demo "
                 "store, or type the path of a campaign store in the sidebar.")

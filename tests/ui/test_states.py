@@ -82,3 +82,30 @@ def test_store_being_written_by_a_campaign(store):
         note = [i.value for i in at.info if i.value.startswith("A campaign is writing this store")]
         assert note == [f"A campaign is writing this store ({counts['running']} running, {counts['pending']} pending). "
                         "The page shows the designs committed so far; reload the page to see newer ones."]
+
+
+def test_a_typed_store_outside_the_project_folders_is_refused(store, tmp_path, monkeypatch):
+    # security rule of the product (no outside source): a path typed into the app stays inside the
+    # project's datasets/ or reports/; other stores are opened from the command line
+    project = tmp_path / "project"
+    (project / "datasets").mkdir(parents=True)
+    monkeypatch.chdir(project)
+    at = page_test("training_page", store).run()
+    elsewhere = make_app_store(tmp_path / "elsewhere" / "rod.sqlite", n=3, model=False, front=False)
+    at.sidebar.text_input(key="store_field").set_value(str(elsewhere)).run()
+    assert not at.exception
+    assert "a store typed here must lie inside the project's datasets/ or reports/" in at.error[0].value
+    assert "surrogate app STORE" in at.error[0].value
+    # the page stays on the store given at start-up
+    assert at.session_state["store_path"] == str(store)
+
+
+def test_a_typed_store_inside_datasets_is_opened(store, tmp_path, monkeypatch):
+    project = tmp_path / "project"
+    inside = make_app_store(project / "datasets" / "small.sqlite", n=0, model=False, front=False)
+    monkeypatch.chdir(project)
+    at = page_test("training_page", store).run()
+    at.sidebar.text_input(key="store_field").set_value("datasets/small.sqlite").run()
+    assert not at.exception and not at.error
+    assert "holds no designs yet" in at.info[0].value
+    assert inside.is_file()
