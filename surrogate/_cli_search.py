@@ -69,6 +69,11 @@ def _g(v, spec=".4g"):
     return "-" if v is None or (isinstance(v, float) and not math.isfinite(v)) else format(v, spec)
 
 
+def _progress(ev):
+    sys.stderr.write(f"\rsearch: {ev['finished']}/{ev['total']} trials, {ev['elapsed_s']:.0f} s   ")
+    sys.stderr.flush()
+
+
 def run_search(args):
     from numbers import Integral
 
@@ -94,10 +99,22 @@ def run_search(args):
         objectives = [p.strip() for v in args.objectives for p in v.split(",") if p.strip()]
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", StaleModelWarning)
-        out = search_store(args.store, objectives=objectives, n_trials=n_trials, sampler=args.sampler, seed=seed,
-                           window_nm=window, cautious_k=cautious, version=args.version, strict=args.strict,
-                           length_sigma_nm=sigma, n_mc_samples=args.mc_samples, study_format=args.study_format,
-                           code_version=__version__)
+        # progress on a terminal only: a log or a pipe gets the results and errors alone
+        shown = []  # the progress line is open on stderr once a batch is reported
+
+        def progress(ev):
+            shown.append(True)
+            _progress(ev)
+
+        try:
+            out = search_store(args.store, objectives=objectives, n_trials=n_trials, sampler=args.sampler, seed=seed,
+                               window_nm=window, cautious_k=cautious, version=args.version, strict=args.strict,
+                               length_sigma_nm=sigma, n_mc_samples=args.mc_samples, study_format=args.study_format,
+                               code_version=__version__,
+                               progress=progress if sys.stderr.isatty() and not args.json else None)
+        finally:
+            if shown:  # end the progress line: what follows (an error, the front) gets lines of its own
+                sys.stderr.write("\n")
     for w in caught:
         if issubclass(w.category, StaleModelWarning):
             sys.stderr.write(f"warning: {w.message}\n")

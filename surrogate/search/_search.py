@@ -174,7 +174,7 @@ def search_store(store_path, *, objectives=None, n_trials=DEFAULT_TRIALS, sample
                  window_nm=DEFAULT_WINDOW_NM, cautious_k=0.0, version=None, strict=False, bounds=None,
                  trust=TrustSettings(), length_sigma_nm=DEFAULT_LENGTH_SIGMA_NM, n_mc_samples=DEFAULT_MC_SAMPLES,
                  population_size=DEFAULT_POPULATION_SIZE, study_format="journal", study_name=None, persist=True,
-                 record=True, reference=None, code_version="unknown"):
+                 record=True, reference=None, code_version="unknown", progress=None):
     """Search a store's surrogates for the feasible Pareto front and record it in the store.
 
     Parameters
@@ -214,6 +214,8 @@ def search_store(store_path, *, objectives=None, n_trials=DEFAULT_TRIALS, sample
     reference : sequence of float or None
         Hypervolume reference (minimisation form); default :func:`training_reference`.
     code_version : str
+    progress : callable(dict) or None
+        Called after each batch of trials (see :func:`run_study`).
 
     Returns
     -------
@@ -286,7 +288,8 @@ def search_store(store_path, *, objectives=None, n_trials=DEFAULT_TRIALS, sample
                                    study_format=study_format, user_attrs={"settings": json.dumps(settings, sort_keys=True)})
         result = run_study(problem, space, problem.directions, n_trials=n_trials,
                            constraint_names=problem.constraint_names, sampler=sampler, seed=study_seed,
-                           population_size=population_size, archive=archive, study_name=study_name)
+                           population_size=population_size, archive=archive, study_name=study_name,
+                           progress=progress)
         settings["sampler_seed"] = result.seed
         values_min = result.minimisation_values()
         feasible = result.feasible

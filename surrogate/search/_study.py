@@ -166,7 +166,8 @@ def _check_space(space):
 
 
 def run_study(evaluate, space, directions, *, n_trials, constraint_names=(), sampler="nsga2", seed=None,
-              population_size=DEFAULT_POPULATION_SIZE, archive=None, study_name="search", memoised=True):
+              population_size=DEFAULT_POPULATION_SIZE, archive=None, study_name="search", memoised=True,
+              progress=None):
     """Run ``n_trials`` new trials of a multi-objective optuna study in batches.
 
     Parameters
@@ -194,6 +195,8 @@ def run_study(evaluate, space, directions, *, n_trials, constraint_names=(), sam
         Name of the in-memory study (the archive's name when given).
     memoised : bool, default True
         See :func:`make_sampler`.
+    progress : callable(dict) or None
+        Called after each batch with ``finished`` and ``total`` (new trials) and ``elapsed_s``.
 
     Returns
     -------
@@ -250,6 +253,8 @@ def run_study(evaluate, space, directions, *, n_trials, constraint_names=(), sam
         done += k
         if archive is not None:
             archive.append(study.get_trials(deepcopy=False)[start:])
+        if progress is not None:
+            progress({"finished": done, "total": n_trials, "elapsed_s": time.perf_counter() - t0})
 
     complete = study.get_trials(deepcopy=False, states=(TrialState.COMPLETE,))
     n = len(complete)

@@ -47,3 +47,10 @@ def test_stale_model_warns_and_strict_refuses(fresh_store, capsys):
     assert code == 0 and err.startswith("warning: model v0001 predates") and "(stale)" in out
     code, out, err = run_cli(["search", str(fresh_store), "--trials", "100", "--strict"], capsys)
     assert code == 2 and "new results since model v0001" in err
+
+
+def test_progress_is_shown_on_a_terminal(fresh_store, capsys, monkeypatch):
+    monkeypatch.setattr("sys.stderr.isatty", lambda: True)
+    code, out, err = run_cli(["search", str(fresh_store), "--trials", "200", "--seed", "1"], capsys)
+    assert code == 0
+    assert "\rsearch: 100/200 trials" in err and "\rsearch: 200/200 trials" in err and err.endswith("\n")
