@@ -48,8 +48,8 @@ def add_campaign_commands(sub, units):
                        "with unit-suffixed columns) and spectra.<ext> (one row per design and wavelength: wavelength_nm, "
                        "c_ext_nm2, c_abs_nm2, c_sca_nm2, enhancement, converged, n_iter, residual).",
                        epilog=units, formatter_class=argparse.RawDescriptionHelpFormatter)
-    e.add_argument("store", metavar="STORE")
-    e.add_argument("--format", choices=("parquet", "csv"), default="parquet")
+    e.add_argument("store", metavar="STORE", help="the campaign store (.sqlite)")
+    e.add_argument("--format", choices=("parquet", "csv"), default="parquet", help="table format (default parquet)")
     e.add_argument("--out", required=True, metavar="DIR", help="output folder (created if missing)")
     e.set_defaults(run=run_export)
 
@@ -124,6 +124,9 @@ def run_generate(args):
     _check_count("--dask-workers", args.dask_workers, high=1024)
     if args.scheduler and args.dask_workers:
         raise InvalidParameterError("--scheduler and --dask-workers are alternatives; got both")
+    if not Path(args.campaign).is_file():
+        raise InvalidParameterError(f"campaign file {args.campaign} does not exist; check the path, or start from a "
+                                    "copy of datasets/demo.toml (see 'surrogate generate --help')")
     spec = load_campaign(args.campaign)
     store_path = Path(args.store) if args.store else Path(args.campaign).resolve().parent / f"{spec.name}.sqlite"
     store = open_or_create(spec, store_path, add=args.add)

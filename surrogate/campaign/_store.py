@@ -314,7 +314,8 @@ class Store:
         """Open an existing store; migrate an older schema; refuse a newer one or a foreign file."""
         path = Path(path)
         if not path.is_file():
-            raise StoreError(f"store {path} does not exist; create it with 'surrogate generate'")
+            raise StoreError(f"store {path} does not exist; check the path, or create it with "
+                             "'surrogate generate CAMPAIGN.toml'")
         if not readonly and not (os.access(path, os.W_OK) and os.access(path.parent, os.W_OK)):
             raise StoreError(f"store {path} is read-only (its file or folder cannot be written); nothing was written; "
                              "copy the store and its .models folder to a writable folder")

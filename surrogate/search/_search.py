@@ -301,12 +301,14 @@ def search_store(store_path, *, objectives=None, n_trials=DEFAULT_TRIALS, sample
             raise EmptyFrontError(
                 f"front must hold at least one feasible design; got none among {len(values_min)} trials ({what}); "
                 "widen the window, change the space or run more trials")
-        # one point per distinct design (NSGA-II offspring may copy a parent exactly)
-        _, first = np.unique(result.params[idx], axis=0, return_index=True)
-        idx = idx[np.sort(first)]
+        # one point per distinct design: NSGA-II offspring may copy a parent, and points closer than
+        # the 0.01 nm design rounding are one design (one design id, one simulation)
+        from ..campaign._design import _DECIMALS
+
+        idx = idx[np.argsort(values_min[idx, 0], kind="stable")]  # best first objective first
+        _, first = np.unique(np.round(result.params[idx], _DECIMALS), axis=0, return_index=True)
+        idx = idx[np.sort(first)]  # the best of each design, order kept
         X = result.params[idx]
-        order = np.argsort(values_min[idx, 0], kind="stable")
-        idx, X = idx[order], X[order]
         frame_x = pd.DataFrame(X, columns=names)
         summary = model.predict_summary(frame_x, coverage=trust.coverage)
         robust = robustness(model, X, length_names=length_parameters(names, family), length_sigma_nm=length_sigma_nm,

@@ -55,15 +55,22 @@ def export_candidates(store_path, out_dir, *, top=10, front_id=None, mesh_spacin
     out_dir = Path(out_dir)
     with Store.open(store_path, readonly=True) as store:
         front = _latest_front(store, front_id)
-        points = store.front_points(front["front_id"])[:top]
+        points = store.front_points(front["front_id"])
         spec = store.spec
         verified = {v["design_id"]: v for v in store.verifications()}
     family = get_family(spec["family"])
     out_dir.mkdir(parents=True, exist_ok=True)
     rows = []
-    for rank, p in enumerate(points):
+    seen = set()
+    for p in points:
+        if len(rows) == top:
+            break
         params = _round_params(p["params"], spec)
         did = content_id(params)
+        if did in seen:  # fronts recorded before the search merged designs closer than the 0.01 nm rounding
+            continue
+        seen.add(did)
+        rank = len(rows)
         try:
             sites = family.sites(params, mesh_spacing_nm)
         except InvalidParameterError as exc:

@@ -92,7 +92,7 @@ def rank_uncertain(predictions):
 def _latest_front(store, front_id):
     fronts = store.fronts()
     if not fronts:
-        raise InvalidParameterError(f"store {store.path} has no search front to queue from; run 'surrogate search' first")
+        raise InvalidParameterError(f"store {store.path} has no search front yet; run 'surrogate search {store.path}' first")
     if front_id is None:
         return fronts[-1]
     for f in fronts:

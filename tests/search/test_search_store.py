@@ -61,6 +61,13 @@ def test_search_records_a_feasible_non_dominated_front(fresh_store):
     assert set(points[0]["predictions"]) == {"resonance_nm", "enhancement_at_laser", "heat_per_enhancement_nm2",
                                              "spot_area_nm2"}
     assert study_file(fresh_store).is_file()
+    # one point per design: no two points share a design id (parameters rounded to 0.01 nm)
+    from surrogate.campaign import design_id
+
+    ids = [design_id({**pt["params"], "thickness_nm": 30.0}) for pt in points]
+    assert len(set(ids)) == len(ids)
+    # best first objective first
+    assert np.all(np.diff(v[:, 0]) >= 0)
 
 
 def test_reference_is_the_worst_training_value(fresh_store):

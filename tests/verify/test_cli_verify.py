@@ -56,3 +56,19 @@ def test_export_candidates_writes_files(store_copy, tmp_path, capsys):
     assert len(list(out.glob("*.stl"))) == 2 and len(list(out.glob("*.json"))) == 2
     assert main(["export-candidates", str(store_copy), "--top", "0", "--out", str(out)]) == 2
     assert "top must be" in capsys.readouterr().err
+
+
+def test_export_skips_front_points_that_are_one_design(store_copy, tmp_path):
+    # a front recorded before the search merged points closer than the 0.01 nm design rounding
+    from surrogate.verify import export_candidates
+
+    with Store.open(store_copy) as store:
+        old = store.front_points(store.fronts()[-1]["front_id"])[:2]
+        base = dict(old[0], params={k: round(v, 2) for k, v in old[0]["params"].items()})
+        twin = dict(old[0], params={k: round(v, 2) + 0.002 for k, v in old[0]["params"].items()})
+        fid = store.record_front(model_version=1, objectives=[], reference=[0.0], hypervolume=0.0, n_trials=3,
+                                 n_feasible=3, study={}, settings={}, points=[base, twin, old[1]],
+                                 code_version="test")
+    rows = export_candidates(store_copy, tmp_path / "c", top=5, front_id=fid, mesh_spacing_nm=2.0)
+    assert [r["rank"] for r in rows] == [0, 1] and len({r["design_id"] for r in rows}) == 2
+    assert len(list((tmp_path / "c").glob("*.json"))) == 2
