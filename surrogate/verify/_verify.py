@@ -29,11 +29,10 @@ import numpy as np
 
 from .._validation import check_real
 from ..errors import InvalidParameterError
+from ..models._dataset import _RESOLVED_FLAG
 
 __all__ = ["VerifyReport", "verify_store", "compare", "discretization"]
 
-# target -> the figure that says whether its value is a measurement or a bound of the sweep
-_RESOLVED = {"resonance_nm": "resonance_resolved", "far_field_resonance_nm": "far_field_resonance_resolved"}
 
 
 @dataclass(frozen=True)
@@ -83,7 +82,10 @@ def compare(predicted, figures):
     out = {}
     for t, p in (predicted or {}).items():
         sim = figures.get(t)
-        resolved = bool(figures.get(_RESOLVED[t], True)) if t in _RESOLVED else True
+        # the figure that says whether the value is a measurement or only a bound of the sweep,
+        # the same rule the training sets use
+        flag = _RESOLVED_FLAG.get(t)
+        resolved = bool(figures.get(flag, True)) if flag else True
         row = {"median": p["median"], "lower": p["lower"], "upper": p["upper"], "mu": p["mu"], "sigma": p["sigma"],
                "transform": p["transform"], "simulated": None, "z_sigma": None, "inside": None, "resolved": resolved}
         if isinstance(sim, (int, float)) and math.isfinite(sim) and not isinstance(sim, bool):
