@@ -27,6 +27,25 @@ has (standard vector calculus)
   with ``S = Si(a r) + Si(b r)`` and ``C = Ci(a r) - Ci(b r)``.  As
   ``k_F -> inf`` this returns ``exp(i k r)``; the imaginary (radiating) part is
   not filtered, so the optical theorem holds unchanged.
+
+  The consistent filtered tensor.  The exact tensor splits into a principal
+  value part and the contact term ``-(4 pi/3) delta(r) I``; the lattice keeps
+  that contact term exactly through Clausius-Mossotti in the polarizability.
+  Differentiating the band-limited scalar, however, also band-limits the
+  contact term: since ``(nabla^2 + k^2) g_F = -4 pi delta_F`` (the ``u''``
+  above), ``(k^2 I + grad grad) g_F`` carries ``-(4 pi/3) delta_F(r) I`` at
+  every ``r != 0``, with the smeared delta
+
+      delta_F(r) = (sin(k_F r) - k_F r cos(k_F r)) / (2 pi^2 r^3),
+
+  the inverse Fourier transform of the ball ``|q| < k_F``.  Sampled on a cubic
+  lattice it does not sum to one per cell (its sum over ``r != 0`` tends to
+  ``1 - pi/6``), so keeping it adds a spurious, shape-dependent interaction
+  near every surface.  The tensor used here therefore adds ``(4 pi/3)
+  delta_F(r)`` back to ``A``: only the band-limited principal-value part
+  remains (Yurkin, Min & Hoekstra 2010, the FCD interaction term), and the
+  polarizability keeps Clausius-Mossotti plus the dynamic self term, which is
+  this tensor's own limit at ``r -> 0`` (see ``_polarizability.py``).
 """
 
 from __future__ import annotations
@@ -34,7 +53,7 @@ from __future__ import annotations
 import numpy as np
 from scipy.special import sici
 
-__all__ = ["green_coefficients", "green_tensor", "dense_interaction_matrix"]
+__all__ = ["green_coefficients", "green_tensor", "dense_interaction_matrix", "smeared_delta"]
 
 
 def _ab_from_u(r, k, u, du, d2u):
@@ -83,7 +102,25 @@ def green_coefficients(r_nm, k_per_nm, *, filtered_spacing_nm=None):
     u = (cos_kr * s_sum + sin_kr * c_dif) / np.pi + 1j * sin_kr
     du = (-k * sin_kr * s_sum + k * cos_kr * c_dif + 2.0 * np.sin(kfr) / r) / np.pi + 1j * k * cos_kr
     d2u = -k * k * u + (2.0 / np.pi) * (kfr * np.cos(kfr) - np.sin(kfr)) / (r * r)
-    return _ab_from_u(r, k, u, du, d2u)
+    a, b = _ab_from_u(r, k, u, du, d2u)
+    # Remove the smeared contact term: A += (4 pi/3) delta_F(r) (module docstring).
+    return a + (4.0 * np.pi / 3.0) * smeared_delta(r, kf), b
+
+
+def smeared_delta(r_nm, k_filter_per_nm):
+    """Band-limited delta ``(sin(k_F r) - k_F r cos(k_F r)) / (2 pi^2 r^3)`` [1/nm^3].
+
+    The inverse Fourier transform of the indicator of the ball ``|q| < k_F``;
+    its integral over all space is 1.  For small ``k_F r`` the series
+    ``k_F^3 / (6 pi^2) (1 - (k_F r)^2 / 10)`` avoids cancellation.
+    """
+    r = np.asarray(r_nm, dtype=float)
+    x = float(k_filter_per_nm) * r
+    small = x < 1e-2
+    with np.errstate(divide="ignore", invalid="ignore"):
+        out = (np.sin(x) - x * np.cos(x)) / (2.0 * np.pi**2 * r**3)
+    series = float(k_filter_per_nm) ** 3 / (6.0 * np.pi**2) * (1.0 - x * x / 10.0)
+    return np.where(small, series, out)
 
 
 def green_tensor(offsets_nm, k_per_nm, *, filtered_spacing_nm=None):

@@ -23,7 +23,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["POLARIZABILITIES", "polarizability", "ldr_coefficients"]
+__all__ = ["POLARIZABILITIES", "polarizability", "ldr_coefficients", "fcd_self_term"]
 
 #: Names accepted by :func:`polarizability`.
 POLARIZABILITIES = ("fcd", "ldr", "rrcm")
@@ -43,6 +43,21 @@ def ldr_coefficients():
 def _clausius_mossotti(eps_rel, spacing_nm):
     # Clausius-Mossotti: alpha = (3 d^3 / 4 pi) (eps - 1) / (eps + 2), [1] eq. (2.1).
     return (3.0 * spacing_nm**3 / (4.0 * np.pi)) * (eps_rel - 1.0) / (eps_rel + 2.0)
+
+
+def fcd_self_term(kd):
+    """Dynamic self term ``M`` [-] of the filtered coupled dipole for ``k d < pi``.
+
+    ``M = (4/3)(kd)^2 + (2/(3 pi)) ln((pi - kd)/(pi + kd)) (kd)^3 + (2/3) i (kd)^3``
+    (Yurkin, Min & Hoekstra 2010 [3]); ``M / d^3`` is the ``r -> 0`` limit of the
+    consistent filtered tensor (see :func:`polarizability`).
+    """
+    kd = float(kd)
+    return (
+        (4.0 / 3.0) * kd**2
+        + (2.0 / (3.0 * np.pi)) * np.log((np.pi - kd) / (np.pi + kd)) * kd**3
+        + (2.0 / 3.0) * 1j * kd**3
+    )
 
 
 def polarizability(eps_rel, spacing_nm, k_per_nm, *, kind="fcd", s_factor=0.0):
@@ -81,20 +96,15 @@ def polarizability(eps_rel, spacing_nm, k_per_nm, *, kind="fcd", s_factor=0.0):
         #                                             - (2/3) i (kd)^3]),  [2], with m^2 = eps.
         corr = -((_B1 + eps * _B2 + eps * _B3 * s_factor) * kd**2 - (2.0 / 3.0) * 1j * kd**3)
     elif kind == "fcd":
-        # FCD: alpha^-1 = 1/(chi V) - G^F(0), chi = (eps - 1)/(4 pi), with G^F the
-        # tensor band-limited to k < pi/d (_green.py) and [3]'s dynamic self term
-        #   M = (4/3)(kd)^2 + (2/(3 pi)) ln((pi - kd)/(pi + kd)) (kd)^3 + (2/3) i (kd)^3,
-        # i.e. (2/pi) int_0^{pi/d} q^2 (2/3) k^2 / (q^2 - k^2 - i0) dq d^3.  The static
-        # part of G^F(0) is -(2/pi) int_0^{pi/d} q^2/3 dq = -2 pi^2 / (9 d^3) (derived
-        # here), not the -4 pi / (3 d^3) that alpha_CM implies, because the lattice
-        # sums of the spherically filtered static tensor do not vanish; so
-        #   alpha^-1 = alpha_CM^-1 - [(4 pi/3 - 2 pi^2/9) + M] / d^3.
-        corr = (
-            (4.0 * np.pi / 3.0 - 2.0 * np.pi**2 / 9.0)
-            + (4.0 / 3.0) * kd**2
-            + (2.0 / (3.0 * np.pi)) * np.log((np.pi - kd) / (np.pi + kd)) * kd**3
-            + (2.0 / 3.0) * 1j * kd**3
-        )
+        # FCD: alpha^-1 = alpha_CM^-1 - M / d^3 with the dynamic self term [3]
+        #   M = (4/3)(kd)^2 + (2/(3 pi)) ln((pi - kd)/(pi + kd)) (kd)^3 + (2/3) i (kd)^3.
+        # Derivation: M / d^3 is the r -> 0 limit of the consistent filtered tensor of
+        # _green.py (the contact term stays in alpha_CM, exactly).  That tensor is
+        # isotropic at 0 with value (1/3) trace = (2/3) k^2 g_F(0), because the
+        # traceless static principal-value part filters to zero at r = 0; and
+        #   g_F(0) = u'(0) = (1/pi) [2 k_F + k ln((k_F - k)/(k_F + k))] + i k,
+        # which with k_F = pi/d gives M term by term.
+        corr = fcd_self_term(kd)
     else:  # validated at the boundary; kept for internal misuse
         raise ValueError(f"kind must be one of {POLARIZABILITIES}; got {kind!r}")
     return a_cm / (1.0 - (a_cm / d**3) * corr)
