@@ -19,10 +19,15 @@ from ._memory import memory_estimate_bytes
 from ._nearfield import NEAR_FIELD_GREENS, c_sca_far_field_nm2, far_field_amplitude, near_field
 from ._polarizability import POLARIZABILITIES, ldr_coefficients, polarizability
 from ._solve import SOLVE_METHODS, DipoleSolution, solve, solve_polarizations, solve_sweep
+from ._settings import PRECISIONS, SolverSettings
+from ._incidence import Incidence
 
 __all__ = [
     "Lattice",
     "DipoleSolution",
+    "SolverSettings",
+    "Incidence",
+    "PRECISIONS",
     "solve",
     "solve_sweep",
     "solve_polarizations",

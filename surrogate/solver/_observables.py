@@ -21,6 +21,7 @@ from ._green import green_coefficients
 __all__ = [
     "incident_field",
     "cross_sections",
+    "absorption_by_site",
     "scattering_amplitude",
     "far_field_c_sca",
     "dipole_field",
@@ -33,20 +34,32 @@ def incident_field(positions_nm, k_per_nm, k_direction, e_direction):
     return phase[:, None] * e_direction[None, :]
 
 
+def absorption_by_site(polarization, alpha_site_nm3, k_per_nm):
+    """Absorption cross section of each site [nm^2], shape (N,); their sum is ``C_abs``.
+
+    ``C_abs,j = 4 pi k [-Im(1/alpha_j) - (2/3) k^3] |P_j|^2`` ([1], with ``|E0| = 1``):
+    the power the dipole draws from its exciting field, ``(omega/2) Im(P_j . E_exc,j^*)``
+    with ``E_exc,j = P_j / alpha_j``, minus what it radiates, per unit incident
+    irradiance.  For a site of real permittivity it is zero (LDR: to order (kd)^3;
+    FCD and RRCM: exactly, as their radiative term is ``(2/3) i k^3`` itself).
+    """
+    p2 = np.sum(np.abs(np.asarray(polarization, dtype=np.complex128)) ** 2, axis=1)
+    k = float(k_per_nm)
+    return 4.0 * np.pi * k * (-np.imag(1.0 / alpha_site_nm3) - (2.0 / 3.0) * k**3) * p2
+
+
 def cross_sections(polarization, e_inc, alpha_site_nm3, k_per_nm):
     """Extinction and absorption cross sections [nm^2].
 
     ``C_ext = 4 pi k sum_j Im(E_inc,j^* . P_j)`` and
-    ``C_abs = 4 pi k sum_j [-Im(1/alpha_j) - (2/3) k^3] |P_j|^2`` ([1], with
-    ``|E0| = 1``).
+    ``C_abs = sum_j C_abs,j`` (:func:`absorption_by_site`) ([1], with ``|E0| = 1``).
     """
     p = np.asarray(polarization, dtype=np.complex128)
     k = float(k_per_nm)
     # [1] C_ext = (4 pi k / |E0|^2) sum_j Im(E_inc,j^* . P_j)
     c_ext = 4.0 * np.pi * k * float(np.sum(np.imag(np.conj(e_inc) * p)))
     # [1] C_abs = (4 pi k / |E0|^2) sum_j {Im[P_j . (alpha_j^-1)^* P_j^*] - (2/3) k^3 |P_j|^2}
-    p2 = np.sum(np.abs(p) ** 2, axis=1)
-    c_abs = 4.0 * np.pi * k * float(np.sum((-np.imag(1.0 / alpha_site_nm3) - (2.0 / 3.0) * k**3) * p2))
+    c_abs = float(np.sum(absorption_by_site(p, alpha_site_nm3, k)))
     return c_ext, c_abs
 
 

@@ -20,15 +20,16 @@ from dataclasses import dataclass
 import numpy as np
 from threadpoolctl import threadpool_limits
 
-from .._validation import check_choice, check_int, check_real
+from .._validation import check_real
 from ..errors import InvalidParameterError, InvalidTypeError, LatticeTooLargeError, NotConvergedWarning
 from ._green import dense_interaction_matrix
 from ._interaction import FFTInteraction
 from ._krylov import krylov_solve
 from ._lattice import Lattice
 from ._memory import default_memory_limit_bytes, memory_estimate_bytes
-from ._observables import cross_sections, incident_field
-from ._polarizability import POLARIZABILITIES, polarizability
+from ._observables import absorption_by_site, cross_sections, incident_field
+from ._polarizability import polarizability
+from ._settings import SolverSettings
 
 __all__ = ["DipoleSolution", "solve", "solve_sweep", "solve_polarizations", "SOLVE_METHODS"]
 
@@ -84,6 +85,11 @@ class DipoleSolution:
     equivalent_radius_nm : float
         Radius of the sphere with the lattice's volume [nm]; the efficiencies
         divide by ``pi a_eq^2``.
+    c_abs_site_nm2 : ndarray of float, shape (N,)
+        Absorption cross section of each site [nm^2] (absorbed power per unit
+        incident irradiance, by site); sums to ``c_abs_nm2``.
+    settings : SolverSettings
+        The settings of the solve.
     """
 
     wavelength_nm: float
@@ -108,6 +114,8 @@ class DipoleSolution:
     tol: float
     dtype: str
     equivalent_radius_nm: float
+    c_abs_site_nm2: np.ndarray = None
+    settings: SolverSettings = None
 
     @property
     def k_per_nm(self) -> float:
@@ -158,35 +166,32 @@ def _check_eps(eps, n_materials, name="eps"):
     return e
 
 
-def _check_common(lattice, wavelength_nm, n_host, e_direction, k_direction, kind, method, tol, max_iter, dtype, memory_limit_bytes):
+def _settings_from(settings, overrides):
+    # One SolverSettings per call: the given one (default SolverSettings()) with any
+    # keyword overrides applied and validated (library convenience, e.g. polarizability="ldr").
+    if settings is None:
+        settings = SolverSettings()
+    elif not isinstance(settings, SolverSettings):
+        raise InvalidTypeError(f"settings must be a surrogate.solver.SolverSettings; got {type(settings).__name__}")
+    return settings.replace(**overrides)
+
+
+def _check_common(lattice, n_host, e_direction, k_direction, settings):
     if not isinstance(lattice, Lattice):
         raise InvalidTypeError(f"lattice must be a surrogate.solver.Lattice; got {type(lattice).__name__}")
-    check_choice("polarizability", kind, POLARIZABILITIES)
-    check_choice("method", method, SOLVE_METHODS)
     n_host = check_real("n_host", n_host, low=0.0, low_open=True)
-    tol = check_real("tol", tol, low=0.0, high=1.0, low_open=True, high_open=True)
-    max_iter = check_int("max_iter", max_iter, low=1)
-    try:
-        dt = np.dtype(dtype)
-    except TypeError:
-        raise InvalidTypeError(f"dtype must be numpy.complex128 or numpy.complex64; got {dtype!r}") from None
-    if dt not in _DTYPES:
-        raise InvalidParameterError(f"dtype must be numpy.complex128 or numpy.complex64; got {dtype!r}")
     kdir = _unit_vector("k_direction", k_direction, allow_complex=False)
     edir = _unit_vector("e_direction", e_direction, allow_complex=True)
     if abs(np.dot(kdir, edir)) > 1e-9:
         raise InvalidParameterError(f"e_direction must be perpendicular to k_direction; got e.k = {abs(np.dot(kdir, edir)):.3g}")
-    if memory_limit_bytes is None:
-        limit = default_memory_limit_bytes()
-    else:
-        limit = check_int("memory_limit_bytes", memory_limit_bytes, low=1)
-    est = memory_estimate_bytes(lattice, dt, method=method)
+    limit = default_memory_limit_bytes() if settings.memory_limit_bytes is None else settings.memory_limit_bytes
+    est = memory_estimate_bytes(lattice, settings.numpy_dtype, method=settings.method)
     if est > limit:
         raise LatticeTooLargeError(
             f"lattice of {lattice.n_dipoles} dipoles needs about {est / 2**30:.2f} GiB, over the limit of "
             f"{limit / 2**30:.2f} GiB; use a larger spacing_nm or raise memory_limit_bytes"
         )
-    return n_host, tol, max_iter, dt, kdir, edir
+    return n_host, kdir, edir
 
 
 def _check_wavelength(lattice, wavelength_nm, n_host, kind):
@@ -203,12 +208,13 @@ def _check_wavelength(lattice, wavelength_nm, n_host, kind):
 class _System:
     """Scaled system of one lattice at one wavelength (shared by polarizations)."""
 
-    def __init__(self, lattice, eps, wavelength_nm, n_host, kind, method, dtype, s_factor):
+    def __init__(self, lattice, eps, wavelength_nm, n_host, settings, s_factor):
         self.lattice = lattice
-        self.kind = kind
+        self.settings = settings
+        self.kind = kind = settings.polarizability
         self.k = 2.0 * np.pi * n_host / wavelength_nm
-        self.dtype = dtype
-        self.method = method
+        self.dtype = dtype = settings.numpy_dtype
+        self.method = method = settings.method
         filt = lattice.spacing_nm if kind == "fcd" else None
         if method == "direct":
             self.neg_g = -dense_interaction_matrix(lattice.positions_nm, self.k, filtered_spacing_nm=filt)
@@ -239,7 +245,8 @@ class _System:
         sy = (self.s3 * y).reshape(-1, 3)
         return y - self.s3 * self.op.apply(sy).reshape(-1)
 
-    def solve_one(self, e_inc, *, tol, max_iter, x0, restart=100):
+    def solve_one(self, e_inc, *, x0, restart=100):
+        tol, max_iter = self.settings.tol, self.settings.max_iter
         n3 = 3 * self.lattice.n_dipoles
         b = e_inc.reshape(-1)
         if self.method == "direct":
@@ -277,8 +284,12 @@ def _s_factor(kdir, edir):
     return float(np.sum(kdir**2 * np.abs(edir) ** 2))
 
 
-def _finish(system, p, e_inc, wl, conv, n_iter, matvecs, res, reason, t0, *, kind, method, n_host, kdir, edir, eps, tol, dt):
+def _finish(system, p, e_inc, wl, conv, n_iter, matvecs, res, reason, t0, *, n_host, kdir, edir, eps):
+    st = system.settings
+    kind, method, tol, dt = st.polarizability, st.method, st.tol, st.numpy_dtype
     c_ext, c_abs = cross_sections(p, e_inc, system.alpha_site, system.k)
+    c_abs_site = absorption_by_site(p, system.alpha_site, system.k)
+    c_abs_site.setflags(write=False)
     lat = system.lattice
     p.setflags(write=False)
     return DipoleSolution(
@@ -287,6 +298,7 @@ def _finish(system, p, e_inc, wl, conv, n_iter, matvecs, res, reason, t0, *, kin
         matvecs=int(matvecs), elapsed_s=time.perf_counter() - t0, stop_reason=reason, n_host=n_host,
         k_direction=kdir, e_direction=edir, eps=eps, alpha_nm3=system.alpha_mat, spacing_nm=lat.spacing_nm,
         tol=tol, dtype=_DTYPES[np.dtype(dt)], equivalent_radius_nm=lat.equivalent_radius_nm,
+        c_abs_site_nm2=c_abs_site, settings=st,
     )
 
 
@@ -298,13 +310,9 @@ def solve(
     n_host=1.0,
     e_direction=(1.0, 0.0, 0.0),
     k_direction=(0.0, 0.0, -1.0),
-    polarizability="ldr",
-    method="cocg",
-    tol=1e-5,
-    max_iter=5000,
+    settings=None,
     x0=None,
-    dtype=np.complex128,
-    memory_limit_bytes=None,
+    **overrides,
 ):
     """Solve the coupled-dipole equations for one plane wave.
 
@@ -323,27 +331,15 @@ def solve(
         Polarization of the incident field (normalized; may be complex).
     k_direction : array_like, shape (3,), default (0, 0, -1)
         Propagation direction (normalized), perpendicular to ``e_direction``.
-    polarizability : {"ldr", "fcd", "rrcm"}, default "ldr"
-        Lattice dispersion relation, filtered coupled dipole, or
-        Clausius-Mossotti with radiative reaction (see ``_polarizability``).
-        LDR is the default: for gold spheres at the plasmon peak its error
-        falls smoothly with the spacing (so it extrapolates), while FCD's
-        scatters by a few per cent; FCD needs 2-3x fewer iterations for gold
-        in the near infrared.
-    method : {"cocg", "bicgstab", "gmres", "direct"}, default "cocg"
-        Krylov method on the FFT operator, or a dense LU solve (small N only).
-    tol : float, default 1e-5
-        Relative residual ``||E_inc - A P|| / ||E_inc||`` to reach [-].
-    max_iter : int, default 5000
-        Iteration cap; reaching it gives ``converged=False``, not an error.
+    settings : SolverSettings, optional
+        Polarizability, method, tolerance, iteration cap, precision, memory
+        limit; default ``SolverSettings()`` (FCD, COCG, 1e-5, complex128).
     x0 : array_like of complex, shape (N, 3), optional
         Initial dipoles (e.g. the previous wavelength of a sweep); the solver
         starts from its best scalar multiple.
-    dtype : {numpy.complex128, numpy.complex64}, default complex128
-        Precision of the FFT interaction and the Krylov vectors.
-    memory_limit_bytes : int, optional
-        Refuse lattices whose estimate (:func:`memory_estimate_bytes`) exceeds
-        it; default 80 % of the physical memory.
+    **overrides
+        Individual :class:`SolverSettings` fields (``polarizability="ldr"``,
+        ``tol=1e-6``, ...) applied on top of ``settings``.
 
     Returns
     -------
@@ -363,24 +359,22 @@ def solve(
         For bad input.
     """
     t0 = time.perf_counter()
-    n_host, tol, max_iter, dt, kdir, edir = _check_common(
-        lattice, wavelength_nm, n_host, e_direction, k_direction, polarizability, method, tol, max_iter, dtype, memory_limit_bytes
-    )
-    wl = _check_wavelength(lattice, wavelength_nm, n_host, polarizability)
+    st = _settings_from(settings, overrides)
+    n_host, kdir, edir = _check_common(lattice, n_host, e_direction, k_direction, st)
+    wl = _check_wavelength(lattice, wavelength_nm, n_host, st.polarizability)
     e = _check_eps(eps, lattice.n_materials)
     x0 = _check_x0(x0, lattice)
-    system = _System(lattice, e, wl, n_host, polarizability, method, dt, _s_factor(kdir, edir))
+    system = _System(lattice, e, wl, n_host, st, _s_factor(kdir, edir))
     e_inc = incident_field(lattice.positions_nm, system.k, kdir, edir)
-    p, conv, n_iter, mv, res, reason = system.solve_one(e_inc, tol=tol, max_iter=max_iter, x0=x0)
+    p, conv, n_iter, mv, res, reason = system.solve_one(e_inc, x0=x0)
     if not conv:
         warnings.warn(
-            f"solve at {wl:g} nm stopped ({reason}) after {n_iter} iterations with residual {res:.3g} > tol {tol:g}; "
+            f"solve at {wl:g} nm stopped ({reason}) after {n_iter} iterations with residual {res:.3g} > tol {st.tol:g}; "
             "the result is returned with converged=False",
             NotConvergedWarning,
             stacklevel=2,
         )
-    return _finish(system, p, e_inc, wl, conv, n_iter, mv, res, reason, t0, kind=polarizability, method=method,
-                   n_host=n_host, kdir=kdir, edir=edir, eps=e, tol=tol, dt=dt)
+    return _finish(system, p, e_inc, wl, conv, n_iter, mv, res, reason, t0, n_host=n_host, kdir=kdir, edir=edir, eps=e)
 
 
 def _check_x0(x0, lattice):
@@ -403,12 +397,8 @@ def solve_polarizations(
     e_directions=((1.0, 0.0, 0.0), (0.0, 1.0, 0.0)),
     k_direction=(0.0, 0.0, -1.0),
     n_host=1.0,
-    polarizability="ldr",
-    method="cocg",
-    tol=1e-5,
-    max_iter=5000,
-    dtype=np.complex128,
-    memory_limit_bytes=None,
+    settings=None,
+    **overrides,
 ):
     """Solve several incident polarizations sharing one interaction set-up.
 
@@ -423,29 +413,26 @@ def solve_polarizations(
         One per polarization, in order.
     """
     t0 = time.perf_counter()
+    st = _settings_from(settings, overrides)
     e_dirs = np.atleast_2d(np.asarray(e_directions))
     if e_dirs.ndim != 2 or e_dirs.shape[1] != 3 or e_dirs.shape[0] == 0:
         raise InvalidParameterError(f"e_directions must have shape (P, 3); got shape {e_dirs.shape}")
-    checked = [
-        _check_common(lattice, wavelength_nm, n_host, ed, k_direction, polarizability, method, tol, max_iter, dtype, memory_limit_bytes)
-        for ed in e_dirs
-    ]
-    n_host, tol, max_iter, dt, kdir, _ = checked[0]
-    wl = _check_wavelength(lattice, wavelength_nm, n_host, polarizability)
+    checked = [_check_common(lattice, n_host, ed, k_direction, st) for ed in e_dirs]
+    n_host, kdir, _ = checked[0]
+    wl = _check_wavelength(lattice, wavelength_nm, n_host, st.polarizability)
     e = _check_eps(eps, lattice.n_materials)
     out = []
     system = None
     for *_, edir in checked:
         s = _s_factor(kdir, edir)
         if system is None:
-            system = _System(lattice, e, wl, n_host, polarizability, method, dt, s)
-        elif polarizability == "ldr":
+            system = _System(lattice, e, wl, n_host, st, s)
+        elif st.polarizability == "ldr":
             system.set_diagonal(e, n_host, s)
         e_inc = incident_field(lattice.positions_nm, system.k, kdir, edir)
         t1 = time.perf_counter() if out else t0
-        p, conv, n_iter, mv, res, reason = system.solve_one(e_inc, tol=tol, max_iter=max_iter, x0=None)
-        out.append(_finish(system, p, e_inc, wl, conv, n_iter, mv, res, reason, t1, kind=polarizability, method=method,
-                           n_host=n_host, kdir=kdir, edir=edir, eps=e, tol=tol, dt=dt))
+        p, conv, n_iter, mv, res, reason = system.solve_one(e_inc, x0=None)
+        out.append(_finish(system, p, e_inc, wl, conv, n_iter, mv, res, reason, t1, n_host=n_host, kdir=kdir, edir=edir, eps=e))
     return out
 
 
@@ -457,14 +444,9 @@ def solve_sweep(
     n_host=1.0,
     e_direction=(1.0, 0.0, 0.0),
     k_direction=(0.0, 0.0, -1.0),
-    polarizability="ldr",
-    method="cocg",
-    tol=1e-5,
-    max_iter=5000,
-    dtype=np.complex128,
-    memory_limit_bytes=None,
-    warm_start=True,
+    settings=None,
     progress=None,
+    **overrides,
 ):
     """Solve a wavelength sweep, warm-starting each from the previous solution.
 
@@ -476,8 +458,9 @@ def solve_sweep(
     wavelengths_nm : array_like of float, shape (W,)
         Vacuum wavelengths [nm]; neighbours should be close for the warm start
         to help (sorted order is best).
-    warm_start : bool, default True
-        Start each solve from the best multiple of the previous dipoles.
+    settings : SolverSettings, optional
+        As in :func:`solve`; ``settings.warm_start`` starts each solve from the
+        best multiple of the previous dipoles.
     progress : callable or None
         Called as ``progress(i, W)`` after wavelength ``i`` (0-based) finishes.
     **others
@@ -488,6 +471,7 @@ def solve_sweep(
     list of DipoleSolution
         One per wavelength, in input order.
     """
+    st = _settings_from(settings, overrides)
     wls = np.asarray(wavelengths_nm, dtype=float).reshape(-1) if np.ndim(wavelengths_nm) else np.asarray([wavelengths_nm], float)
     if wls.size == 0:
         raise InvalidParameterError("wavelengths_nm must hold at least one value; got an empty array")
@@ -505,11 +489,11 @@ def solve_sweep(
         raise InvalidTypeError(f"progress must be callable or None; got {type(progress).__name__}")
     out = []
     prev = None
+    warm = st.warm_start and st.method != "direct"
     for i, (wl, eps) in enumerate(zip(wls, eps_all)):
         sol = solve(
             lattice, eps, float(wl), n_host=n_host, e_direction=e_direction, k_direction=k_direction,
-            polarizability=polarizability, method=method, tol=tol, max_iter=max_iter,
-            x0=prev if (warm_start and method != "direct") else None, dtype=dtype, memory_limit_bytes=memory_limit_bytes,
+            settings=st, x0=prev if warm else None,
         )
         out.append(sol)
         prev = sol.polarization if np.all(np.isfinite(sol.polarization)) else None

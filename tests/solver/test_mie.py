@@ -37,7 +37,7 @@ def test_gold_sphere_in_water_at_plasmon_peak():
     ext_mie, _, abs_mie = mie_cross_sections_nm2(eps, 20.0, 520.0, n_host=1.33)
     errs = []
     for d, tol_ext, tol_abs in ((4.0, 0.065, 0.056), (2.0, 0.041, 0.035), (1.25, 0.028, 0.024)):
-        s = solve(sphere_lattice(20.0, d), [eps], 520.0, n_host=1.33, k_direction=(0, 0, 1))
+        s = solve(sphere_lattice(20.0, d), [eps], 520.0, n_host=1.33, k_direction=(0, 0, 1), polarizability="ldr")
         assert s.converged and s.polarizability == "ldr"
         errs.append(abs(s.c_ext_nm2 / ext_mie - 1))
         assert errs[-1] < tol_ext
@@ -81,8 +81,8 @@ def test_gold_sphere_off_peak_is_worse_but_improves():
     # +82.9 % / +63.1 %; tolerances just above, and falling.
     eps = complex(gold_eps(600.0))
     ext_mie, _, _ = mie_cross_sections_nm2(eps, 20.0, 600.0, n_host=1.33)
-    e4 = solve(sphere_lattice(20.0, 4.0), [eps], 600.0, n_host=1.33, k_direction=(0, 0, 1)).c_ext_nm2 / ext_mie - 1
-    e2 = solve(sphere_lattice(20.0, 2.0), [eps], 600.0, n_host=1.33, k_direction=(0, 0, 1)).c_ext_nm2 / ext_mie - 1
+    e4 = solve(sphere_lattice(20.0, 4.0), [eps], 600.0, n_host=1.33, k_direction=(0, 0, 1), polarizability="ldr").c_ext_nm2 / ext_mie - 1
+    e2 = solve(sphere_lattice(20.0, 2.0), [eps], 600.0, n_host=1.33, k_direction=(0, 0, 1), polarizability="ldr").c_ext_nm2 / ext_mie - 1
     assert 0 < e2 < e4 < 0.84
     assert e2 < 0.64
 
@@ -98,7 +98,7 @@ def test_extrapolation_beats_finest_spacing_and_brackets_mie():
     ds, vals = [], []
     for n in range(20, 33, 2):
         lat = sphere_lattice(20.0, 40.0 / n)
-        s = solve(lat, [eps], 520.0, n_host=1.33, k_direction=(0, 0, 1))
+        s = solve(lat, [eps], 520.0, n_host=1.33, k_direction=(0, 0, 1), polarizability="ldr")
         ds.append(lat.spacing_nm)
         vals.append(s.c_ext_nm2)
     value, error = extrapolate_to_zero_spacing(ds, vals)
@@ -120,7 +120,7 @@ def test_core_shell_sphere_matches_coated_mie():
     for d, tol in ((2.0, 0.21), (1.6, 0.15)):
         lat = sphere_lattice(14.0, d, shell_radius_nm=20.0)
         assert set(np.unique(lat.material_index)) == {0, 1}
-        s = solve(lat, [eps_core, eps_shell], 560.0, n_host=1.33, k_direction=(0, 0, 1))
+        s = solve(lat, [eps_core, eps_shell], 560.0, n_host=1.33, k_direction=(0, 0, 1), polarizability="ldr")
         assert s.converged
         errs.append(abs(s.c_ext_nm2 / ext_ref - 1))
         assert errs[-1] < tol
