@@ -87,7 +87,9 @@ def open_or_create(spec, store_path, *, add=0):
     spec_dict = spec.to_dict()
     if store_path.exists():
         store = Store.open(store_path)
-        stored = store.spec
+        from .campaign import ADDED_SPEC_DEFAULTS
+
+        stored = {**ADDED_SPEC_DEFAULTS, **store.spec}  # keys added since the store was written
         diff = sorted(k for k in set(stored) | set(spec_dict) if stored.get(k) != json.loads(json.dumps(spec_dict)).get(k))
         if diff:
             store.close()

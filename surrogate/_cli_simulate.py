@@ -18,8 +18,12 @@ report its spectrum and figures of merit.
 
 FAMILY is one of: {families} (see 'surrogate families' for parameters, rules
 and hotspots). Geometric parameters are --param NAME=VALUE with the unit in the
-name (lengths in nm, angles in deg). The antenna is illuminated at normal
-incidence along -z with the electric field along x (its long axis). Cross
+name (lengths in nm, angles in deg). The antenna is illuminated by a plane wave
+of amplitude E0 = 1, by default at normal incidence along -z with the electric
+field along x (its long axis); --incidence-polar-deg tilts it from the normal
+(90 = grazing, in the film plane, as a guided mode drives a transducer),
+--incidence-azimuth-deg turns the plane of incidence from x towards y and
+--polarization-deg turns the field from p (in that plane) towards s. Cross
 sections c_ext_nm2, c_abs_nm2, c_sca_nm2 are in nm^2, in the host medium of real
 index --medium-index; enhancement is |E|^2/|E0|^2 at the hotspot. Every row says
 whether its iterative solve converged, its iteration count and its true relative
@@ -63,9 +67,17 @@ def add_simulate_command(sub, units):
     p.add_argument("--laser-nm", type=float, help="laser vacuum wavelength in nm (added to the sweep if missing)")
     p.add_argument("--hotspot-offset-nm", type=float,
                    help="hotspot distance beyond the tip in nm (tip families; default the family's)")
-    p.add_argument("--polarizability", choices=("ldr", "fcd", "rrcm"), default="ldr",
-                   help="dipole polarizability: ldr (lattice dispersion relation, default), fcd (filtered coupled "
-                   "dipole), rrcm (Clausius-Mossotti with radiative reaction)")
+    p.add_argument("--incidence-polar-deg", type=float, default=0.0,
+                   help="angle of the incident wave from the downward normal -z in deg (default 0; 90 = grazing)")
+    p.add_argument("--incidence-azimuth-deg", type=float, default=0.0,
+                   help="azimuth of the plane of incidence from x towards y in deg (default 0)")
+    p.add_argument("--polarization-deg", type=float, default=0.0,
+                   help="field angle from p (in the plane of incidence) towards s in deg (default 0 = p)")
+    p.add_argument("--polarizability", choices=("fcd", "ldr", "rrcm"), default="fcd",
+                   help="dipole polarizability: fcd (filtered coupled dipole, default), ldr (lattice dispersion "
+                   "relation), rrcm (Clausius-Mossotti with radiative reaction)")
+    p.add_argument("--dtype", choices=("complex128", "complex64"), default="complex128",
+                   help="precision of the FFT interaction and Krylov vectors (default complex128)")
     p.add_argument("--method", choices=("cocg", "bicgstab", "gmres"), default="cocg", help="Krylov solver (default cocg)")
     p.add_argument("--tol", type=float, default=1e-5, help="relative residual to stop at (default 1e-5)")
     p.add_argument("--max-iter", type=int, default=3000, help="iteration cap per wavelength (default 3000)")
@@ -124,6 +136,41 @@ def _surroundings(args):
     return out
 
 
+def _settings(args):
+    from .solver import SolverSettings
+
+    named = {"polarizability": "--polarizability", "method": "--method", "tol": "--tol", "max_iter": "--max-iter",
+             "dtype": "--dtype"}
+    try:
+        return SolverSettings(polarizability=args.polarizability, method=args.method, tol=args.tol,
+                              max_iter=args.max_iter, dtype=args.dtype)
+    except InvalidParameterError as exc:
+        # name the option as the user typed it
+        field = str(exc).split(" ", 1)[0]
+        raise InvalidParameterError(str(exc).replace(field, named.get(field, field), 1)) from None
+
+
+def _incidence(args):
+    from .solver import Incidence
+
+    named = {"polar_deg": "--incidence-polar-deg", "azimuth_deg": "--incidence-azimuth-deg",
+             "polarization_deg": "--polarization-deg"}
+    try:
+        return Incidence(args.incidence_polar_deg, args.incidence_azimuth_deg, args.polarization_deg)
+    except InvalidParameterError as exc:
+        field = str(exc).split(" ", 1)[0]
+        raise InvalidParameterError(str(exc).replace(field, named.get(field, field), 1)) from None
+
+
+def _absorption_by_part(ev):
+    # Absorption cross section of each part at the laser wavelength [nm^2] (or None without a laser).
+    sim = ev.simulation
+    if math.isnan(ev.laser_nm):
+        return None
+    k = int(abs(sim.wavelength_nm - ev.laser_nm).argmin())
+    return {name: float(v[k]) for name, v in sim.c_abs_by_part_nm2.items()}
+
+
 def _check_png(name, value):
     if value is not None and not value.endswith(".png"):
         raise InvalidParameterError(f"{name} must name a .png file; got {value!r}")
@@ -147,11 +194,13 @@ def run_simulate(args):
         raise InvalidParameterError("--field-map needs --laser-nm (the map is taken at the laser wavelength)")
     wl = parse_wavelength_range(args.wavelengths_nm, name="--wavelengths-nm")
     surroundings = _surroundings(args)
+    settings = _settings(args)
+    incidence = _incidence(args)
     ev = evaluate_design(
         args.family, params, laser_nm=args.laser_nm, wavelengths_nm=wl, spacing_nm=args.spacing_nm,
         hotspot_offset_nm=args.hotspot_offset_nm, material=args.material, region_materials=regions,
-        medium_index=args.medium_index, polarizability=args.polarizability, method=args.method, tol=args.tol,
-        max_iter=args.max_iter, refine=args.refine, progress=None if (args.quiet or args.json) else _progress,
+        medium_index=args.medium_index, settings=settings, incidence=incidence,
+        refine=args.refine, progress=None if (args.quiet or args.json) else _progress,
         **surroundings,
     )
     result = ev.simulation
@@ -184,7 +233,11 @@ def run_simulate(args):
                 "family": result.family, "params": dict(result.params), "materials": result.materials,
                 "medium_index": result.medium_index, "spacing_nm": result.spacing_nm, "n_dipoles": result.n_dipoles,
                 "polarizability": result.polarizability, "method": result.method,
+                "solver_settings": result.settings.to_dict(), "incidence": result.incidence.to_dict(),
+                "k_direction": [float(v) for v in result.incidence.k_direction],
+                "e_direction": [float(v) for v in result.incidence.e_direction],
                 "hotspot_nm": [float(v) for v in ev.hotspot_nm],
+                "c_abs_by_part_at_laser_nm2": _absorption_by_part(ev),
                 "laser_nm": None if math.isnan(ev.laser_nm) else ev.laser_nm,
                 "refine_spacings_nm": None if result.refined is None else result.refined["spacings_nm"],
                 "figures": {k: (None if isinstance(v, float) and math.isnan(v) else v) for k, v in figures.items()},
@@ -197,7 +250,9 @@ def run_simulate(args):
         mats = ", ".join(f"{r}={m['name']}" for r, m in result.materials.items())
         hs = ", ".join(f"{v:.4g}" for v in ev.hotspot_nm)
         print(f"# {result.family} {dict(result.params)}; {mats}; medium n={result.medium_index:g}; "
-              f"d={result.spacing_nm:.4g} nm; {result.n_dipoles} dipoles; {result.polarizability}/{result.method}; "
+              f"d={result.spacing_nm:.4g} nm; {result.n_dipoles} dipoles; {result.polarizability}/{result.method}/"
+              f"{result.settings.dtype}; incidence polar {result.incidence.polar_deg:g} deg, azimuth "
+              f"{result.incidence.azimuth_deg:g} deg, polarization {result.incidence.polarization_deg:g} deg; "
               f"hotspot ({hs}) nm")
         fmt = {"wavelength_nm": "{:g}", "converged": "{}", "n_iter": "{}", "residual": "{:.2e}"}
         cells = [[fmt.get(c, "{:.5g}").format(r[c]) for c in columns] for r in rows]
@@ -209,6 +264,11 @@ def run_simulate(args):
         for k, v in figures.items():
             text = f"{v:.5g}" if isinstance(v, float) else str(v)
             print(f"{k:28s} {text}")
+        parts = _absorption_by_part(ev)
+        if parts is not None:
+            print(f"# absorption by part at the laser ({ev.laser_nm:g} nm), c_abs in nm^2")
+            for name, v in parts.items():
+                print(f"{name:28s} {v:.5g}")
     if not result.all_converged:
         print(f"warning: {int((~result.converged).sum())} of {len(rows)} solves did not converge within "
               f"--max-iter {args.max_iter}; their values are not trustworthy", file=sys.stderr)

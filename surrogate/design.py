@@ -15,7 +15,7 @@ from ._validation import check_positive_array, check_real
 from .errors import InvalidParameterError
 from .merit import figures_of_merit
 from .shapes import check_observation_clearance, get_family, observation_clearance
-from .simulate import SimulationResult, check_memory, simulate
+from .simulate import SimulationResult, check_settings, check_memory, simulate
 from .solver import near_field
 
 __all__ = ["evaluate_design", "DesignEvaluation", "map_grid_for", "LASER_FIGURES"]
@@ -95,16 +95,13 @@ def evaluate_design(
     material="gold",
     region_materials=None,
     medium_index=1.0,
-    polarizability="ldr",
-    method="cocg",
-    tol=1e-5,
-    max_iter=3000,
+    settings=None,
+    incidence=None,
     substrate=None,
     medium_layer=None,
     map_half_width_nm=None,
     map_step_nm=None,
     refine=False,
-    memory_limit_bytes=None,
     progress=None,
 ):
     """Solve one design and compute its figures of merit.
@@ -154,8 +151,10 @@ def evaluate_design(
         wl = np.concatenate([wl, [laser]])
     wl = np.unique(wl)
     surroundings = {k: v for k, v in (("substrate", substrate), ("medium_layer", medium_layer)) if v is not None}
+    settings = check_settings(settings)
     # refuse an oversized lattice before any site array exists (the hotspot is found on the sites)
-    check_memory(fam, clean, d, surroundings=surroundings, memory_limit_bytes=memory_limit_bytes, method=method)
+    check_memory(fam, clean, d, surroundings=surroundings, memory_limit_bytes=settings.memory_limit_bytes,
+                 method=settings.method, dtype=settings.numpy_dtype)
     plane = fam.observation_plane(clean, d, hotspot_offset_nm=hotspot_offset_nm, **surroundings)
     hotspot = np.asarray(plane.point_nm, dtype=float)
     half, step = map_grid_for(fam, clean, d)
@@ -167,10 +166,8 @@ def evaluate_design(
     clearance = check_observation_clearance(hotspot, sites)  # before any solve
     sim = simulate(
         fam.name, clean, wavelengths_nm=wl, spacing_nm=d, material=material, region_materials=region_materials,
-        medium_index=medium_index, polarizability=polarizability, method=method, tol=tol, max_iter=max_iter,
-        e_direction=fam.default_e_direction, k_direction=fam.default_k_direction,
-        substrate=substrate, medium_layer=medium_layer, refine=refine, memory_limit_bytes=memory_limit_bytes,
-        progress=progress,
+        medium_index=medium_index, settings=settings, incidence=incidence,
+        substrate=substrate, medium_layer=medium_layer, refine=refine, progress=progress,
     )
     enhancement = np.array([
         float(np.sum(np.abs(near_field(sol, sim.lattice, hotspot[None, :])[0]) ** 2)) for sol in sim.solutions

@@ -11,18 +11,20 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ._validation import check_choice, check_int, check_positive_array, check_real
+from ._validation import check_positive_array, check_real
 from .catalog import get_material
-from .errors import InvalidParameterError, LatticeTooLargeError
+from .errors import InvalidParameterError, InvalidTypeError, LatticeTooLargeError
 from .shapes import get_family
 from .solver import (
+    Incidence,
     Lattice,
+    SolverSettings,
     extrapolate_to_zero_spacing,
     memory_estimate_bytes,
     solve_sweep,
 )
 
-__all__ = ["simulate", "check_memory", "SimulationResult", "default_memory_limit_bytes", "REFINE_FACTORS", "SPECTRUM_COLUMNS"]
+__all__ = ["simulate", "check_memory", "check_settings", "SimulationResult", "default_memory_limit_bytes", "REFINE_FACTORS", "SPECTRUM_COLUMNS"]
 
 #: Spacings solved under refinement, as multiples of the requested (finest) spacing.
 REFINE_FACTORS = (1.0, 1.25, 1.5, 2.0)
@@ -79,6 +81,18 @@ class SimulationResult:
         The solver's per-wavelength solutions of the finest lattice (for fields).
     lattice : Lattice
         The finest lattice.
+    settings : SolverSettings
+        The solver settings used.
+    incidence : Incidence
+        The incident plane wave.
+    part_names : tuple of str
+        The parts of the finest lattice (antenna parts such as ``disk`` and ``peg``,
+        then ``substrate``, ``medium_layer``).
+    c_abs_by_part_nm2 : dict
+        Part name -> absorption cross section of that part per wavelength [nm^2],
+        shape (W,); the parts sum to ``c_abs_nm2``.
+    sites : ShapeSites
+        The finest lattice's sites with their region and part labels.
     """
 
     family: str
@@ -99,6 +113,11 @@ class SimulationResult:
     refined: dict | None = None
     solutions: tuple = field(default=(), repr=False)
     lattice: object = field(default=None, repr=False)
+    settings: SolverSettings = field(default_factory=SolverSettings)
+    incidence: Incidence = field(default_factory=Incidence)
+    part_names: tuple = ()
+    c_abs_by_part_nm2: dict = field(default_factory=dict, repr=False)
+    sites: object = field(default=None, repr=False)
 
     @property
     def all_converged(self):
@@ -142,7 +161,7 @@ class _GridBound:
         self.n_dipoles = int(np.prod(self.grid_shape, dtype=np.int64))  # an upper bound
 
 
-def check_memory(family, params, spacing_nm, *, surroundings=None, memory_limit_bytes=None, method="cocg"):
+def check_memory(family, params, spacing_nm, *, surroundings=None, memory_limit_bytes=None, method="cocg", dtype=np.complex128):
     """Refuse a design whose lattice would need more than the limit, before allocating it.
 
     The estimate assumes every cell of the shape's bounding box is occupied (an upper
@@ -156,7 +175,7 @@ def check_memory(family, params, spacing_nm, *, surroundings=None, memory_limit_
     surroundings = surroundings or {}
     limit = default_memory_limit_bytes() if memory_limit_bytes is None else int(memory_limit_bytes)
     grid = family.bounding_grid_shape(params, spacing_nm, **surroundings)
-    need = memory_estimate_bytes(_GridBound(grid), np.complex128, method=method)
+    need = memory_estimate_bytes(_GridBound(grid), dtype, method=method)
     if need > limit:
         raise LatticeTooLargeError(
             f"lattice of {family.name} at spacing_nm={spacing_nm:g} (bounding grid {grid[0]}x{grid[1]}x{grid[2]}) "
@@ -174,16 +193,11 @@ def simulate(
     material="gold",
     region_materials=None,
     medium_index=1.0,
-    polarizability="ldr",
-    method="cocg",
-    tol=1e-5,
-    max_iter=3000,
-    e_direction=(1.0, 0.0, 0.0),
-    k_direction=(0.0, 0.0, -1.0),
+    settings=None,
+    incidence=None,
     refine=False,
     substrate=None,
     medium_layer=None,
-    memory_limit_bytes=None,
     progress=None,
 ):
     """Solve one design over a wavelength sweep.
@@ -205,25 +219,17 @@ def simulate(
         Region name -> material, e.g. ``{"core": "gold", "shell": 1.45}``.
     medium_index : float
         Real refractive index of the host medium [-], in [1, 4].
-    polarizability : {"ldr", "fcd", "rrcm"}
-        Default "ldr" (lattice dispersion relation): in our measurements its error falls
-        smoothly with the spacing for gold, which the refinement needs (see the README).
-    method : {"cocg", "bicgstab", "gmres"}
-    tol : float
-        Relative residual at which the iterative solve stops [-].
-    max_iter : int
-        Iteration cap; a solve that reaches it is reported ``converged=False``.
-    e_direction, k_direction : (3,) float
-        Incident polarization and propagation directions (normal incidence along -z,
-        field along x by default).
+    settings : SolverSettings, optional
+        Polarizability (default FCD), Krylov method, tolerance, iteration cap, precision
+        and memory limit (default half the physical memory) of every solve.
+    incidence : Incidence, optional
+        The incident plane wave (default: normal incidence along -z, field along x).
     refine : bool
         Also solve at ``REFINE_FACTORS`` times the spacing and extrapolate each cross
         section to d -> 0 with an error bar.
     substrate, medium_layer : SubstrateSlab, MediumLayer, optional
         Surroundings of a film family (regions ``substrate`` and ``medium_layer``; give
         their materials in ``region_materials``).
-    memory_limit_bytes : int, optional
-        Refuse lattices whose estimate exceeds it (default half the physical memory).
     progress : callable(done, total), optional
         Called after each wavelength solve.
 
@@ -236,15 +242,17 @@ def simulate(
     wl = check_positive_array("wavelengths_nm", wavelengths_nm, unit="nm")
     d = check_real("spacing_nm", spacing_nm, low=0.05, high=100.0, unit="nm")
     n_host = check_real("medium_index", medium_index, low=1.0, high=4.0)
-    check_choice("polarizability", polarizability, ("fcd", "ldr", "rrcm"))
-    check_choice("method", method, ("cocg", "bicgstab", "gmres"))
-    check_real("tol", tol, low=1e-12, high=1e-1)
-    check_int("max_iter", max_iter, low=1, high=1_000_000)
-    limit = default_memory_limit_bytes() if memory_limit_bytes is None else memory_limit_bytes
+    settings = check_settings(settings)
+    if settings.method == "direct":
+        raise InvalidParameterError("method must be one of cocg, bicgstab, gmres for a design; got 'direct'")
+    incidence = Incidence() if incidence is None else incidence
+    if not isinstance(incidence, Incidence):
+        raise InvalidTypeError(f"incidence must be a surrogate.solver.Incidence; got {type(incidence).__name__}")
 
     surroundings = {k: v for k, v in (("substrate", substrate), ("medium_layer", medium_layer)) if v is not None}
     spacings = [d * f for f in REFINE_FACTORS] if refine else [d]
-    check_memory(fam, clean, d, surroundings=surroundings, memory_limit_bytes=limit, method=method)  # finest = largest
+    check_memory(fam, clean, d, surroundings=surroundings, memory_limit_bytes=settings.memory_limit_bytes,
+                 method=settings.method, dtype=settings.numpy_dtype)  # finest = largest
     built = [_lattice_for(fam, clean, s, surroundings) for s in spacings]
     region_names = built[0][0].region_names
     overrides = dict(region_materials or {})
@@ -265,18 +273,8 @@ def simulate(
     per_spacing = []
     for sites, lattice in built:
         sols = solve_sweep(
-            lattice,
-            eps,
-            wl,
-            n_host=n_host,
-            e_direction=e_direction,
-            k_direction=k_direction,
-            polarizability=polarizability,
-            method=method,
-            tol=tol,
-            max_iter=max_iter,
-            memory_limit_bytes=limit,
-            progress=tick,
+            lattice, eps, wl, n_host=n_host, e_direction=incidence.e_direction, k_direction=incidence.k_direction,
+            settings=settings, progress=tick,
         )
         per_spacing.append((sites, lattice, sols))
 
@@ -295,6 +293,10 @@ def simulate(
             refined[f"{name}_extrapolated_nm2"] = np.array([e[0] for e in est])
             refined[f"{name}_error_nm2"] = np.array([e[1] for e in est])
         conv_all = np.all([arr(sols, "converged", bool) for _, _, sols in per_spacing], axis=0)
+    by_part = {
+        name: np.array([float(np.sum(s.c_abs_site_nm2[sites0.part == i])) for s in sols0])
+        for i, name in enumerate(sites0.part_names)
+    }
     return SimulationResult(
         family=fam.name,
         params=clean,
@@ -302,8 +304,8 @@ def simulate(
         medium_index=n_host,
         spacing_nm=float(sites0.spacing_nm),
         n_dipoles=int(sites0.n_sites),
-        polarizability=polarizability,
-        method=method,
+        polarizability=settings.polarizability,
+        method=settings.method,
         wavelength_nm=wl,
         c_ext_nm2=arr(sols0, "c_ext_nm2"),
         c_abs_nm2=arr(sols0, "c_abs_nm2"),
@@ -314,4 +316,20 @@ def simulate(
         refined=refined,
         solutions=tuple(sols0),
         lattice=lattice0,
+        settings=settings,
+        incidence=incidence,
+        part_names=tuple(sites0.part_names),
+        c_abs_by_part_nm2=by_part,
+        sites=sites0,
     )
+
+
+def check_settings(settings):
+    # simulate's memory default is half the machine (a bare solve's is 80 %).
+    if settings is None:
+        settings = SolverSettings()
+    elif not isinstance(settings, SolverSettings):
+        raise InvalidTypeError(f"settings must be a surrogate.solver.SolverSettings; got {type(settings).__name__}")
+    if settings.memory_limit_bytes is None:
+        settings = settings.replace(memory_limit_bytes=default_memory_limit_bytes())
+    return settings

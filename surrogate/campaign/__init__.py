@@ -2,7 +2,7 @@
 
 from ._design import design_id, sample_designs
 from ._runner import RunSummary, run_campaign
-from ._spec import CampaignFileError, CampaignSpec, load_campaign, parse_campaign
+from ._spec import ADDED_SPEC_DEFAULTS, CampaignFileError, CampaignSpec, load_campaign, parse_campaign
 from ._store import SCHEMA_VERSION, QueueState, Source, Status, Store, StoreError
 
 __all__ = [
@@ -14,6 +14,7 @@ __all__ = [
     "SCHEMA_VERSION",
     "CampaignSpec",
     "CampaignFileError",
+    "ADDED_SPEC_DEFAULTS",
     "load_campaign",
     "parse_campaign",
     "sample_designs",

@@ -22,12 +22,19 @@ def evaluate_design(spec, params):
     """
     from .. import design
 
+    from ..solver import Incidence, SolverSettings
+    from ._spec import ADDED_SPEC_DEFAULTS
+
+    spec = {**ADDED_SPEC_DEFAULTS, **spec}  # an older store's spec lacks the newer keys
     wl = parse_wavelength_range(spec["wavelengths_nm"], name="solver.wavelengths_nm")
+    settings = SolverSettings(
+        polarizability=spec["polarizability"], tol=spec["tol"], max_iter=spec["max_iter"], dtype=spec["dtype"]
+    )
+    incidence = Incidence(spec["incidence_polar_deg"], spec["incidence_azimuth_deg"], spec["polarization_deg"])
     ev = design.evaluate_design(
         spec["family"], params, laser_nm=spec["laser_nm"], wavelengths_nm=wl, spacing_nm=spec["spacing_nm"],
         hotspot_offset_nm=spec["hotspot_offset_nm"] if _tip_family(spec["family"]) else None,
-        material=spec["material"], medium_index=spec["medium_index"], polarizability=spec["polarizability"],
-        tol=spec["tol"], max_iter=spec["max_iter"],
+        material=spec["material"], medium_index=spec["medium_index"], settings=settings, incidence=incidence,
     )
     sim = ev.simulation
     solver = {
@@ -39,6 +46,8 @@ def evaluate_design(spec, params):
         "medium_index": sim.medium_index,
         "hotspot_nm": [float(v) for v in ev.hotspot_nm],
         "wavelengths_solved": int(sim.wavelength_nm.size),
+        "dtype": sim.settings.dtype,
+        "incidence": sim.incidence.to_dict(),
     }
     figures = {k: (float(v) if isinstance(v, (float, np.floating)) else v) for k, v in ev.figures.items()}
     y, z, inten = ev.field_map

@@ -161,6 +161,10 @@ class Bowtie(FilmFamily):
             poly = poly * np.array([-1.0, 1.0])
         return poly
 
+    def _antenna_parts(self, params, frame, x_nm, y_nm):
+        # The two arms on either side of the gap centre (x = 0).
+        return ("left_arm", "right_arm"), (np.asarray(x_nm) > 0).astype(np.int64)
+
     def _top_polygons(self, params):
         return (("antenna", self._arm_polygon(params, -1)), ("antenna", self._arm_polygon(params, 1)))
 

@@ -114,6 +114,12 @@ class DiskPeg(FilmFamily):
         peg = np.where((x_nm >= 0) & (x_nm < frame.anchor_x_nm), frame.realised["peg_width_nm"] / 2, -np.inf)
         return np.maximum(disk, peg)
 
+    def _antenna_parts(self, params, frame, x_nm, y_nm):
+        # The peg is what stands out of the disk: columns outside the disk's circle.
+        r = params["disk_diameter_nm"] / 2
+        outside = np.hypot(x_nm, y_nm) > r
+        return ("disk", "peg"), outside.astype(np.int64)
+
     def _top_polygons(self, params):
         r, a = params["disk_diameter_nm"] / 2, params["peg_width_nm"] / 2
         x_tip = r + params["peg_length_nm"]

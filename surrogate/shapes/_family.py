@@ -67,6 +67,12 @@ class ShapeSites:
         E.g. ``("antenna",)`` or ``("core", "shell")``.
     volume_nm3 : float
         Volume of the ideal (continuous) shape [nm^3].
+    part : ndarray of int, shape (N,), optional
+        Part of each site, an index into ``part_names``: the antenna split into the
+        pieces an engineer names (``disk``, ``peg``; ``left_arm``, ``right_arm``),
+        then the other regions (``substrate``, ``medium_layer``).  Default: the regions.
+    part_names : tuple of str, optional
+        Names of the parts (default ``region_names``).
     """
 
     indices: np.ndarray
@@ -75,6 +81,13 @@ class ShapeSites:
     region: np.ndarray
     region_names: tuple
     volume_nm3: float
+    part: np.ndarray = None
+    part_names: tuple = None
+
+    def __post_init__(self):
+        if self.part is None:
+            object.__setattr__(self, "part", self.region)
+            object.__setattr__(self, "part_names", tuple(self.region_names))
 
     @property
     def n_sites(self):
@@ -104,6 +117,8 @@ class ShapeSites:
             self.region,
             self.region_names,
             self.volume_nm3,
+            self.part,
+            self.part_names,
         )
 
 

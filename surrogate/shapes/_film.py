@@ -200,16 +200,26 @@ class FilmFamily(ShapeFamily):
         zk = np.arange(lay.lo[2], lay.hi[2] + 1)
         xy = np.stack([lay.xi[ii], lay.yj[jj]], axis=1)
         idx = np.concatenate([np.repeat(xy, zk.size, axis=0), np.tile(zk, xy.shape[0])[:, None]], axis=1)
-        parts, regions = [idx.astype(np.int64)], [np.zeros(idx.shape[0], dtype=np.int64)]
+        x_nm = (lay.xi[ii] + lay.frame.offset_cells[0]) * d
+        y_nm = (lay.yj[jj] + lay.frame.offset_cells[1]) * d
+        antenna_parts, column_part = self._antenna_parts(params, lay.frame, x_nm, y_nm)
+        blocks, regions = [idx.astype(np.int64)], [np.zeros(idx.shape[0], dtype=np.int64)]
+        part = [np.repeat(np.asarray(column_part, dtype=np.int64), zk.size)]
         for k, box in enumerate(lay.boxes, start=1):
             b = box_indices(box)
-            parts.append(b)
+            blocks.append(b)
             regions.append(np.full(b.shape[0], k, dtype=np.int64))
+            part.append(np.full(b.shape[0], len(antenna_parts) + k - 1, dtype=np.int64))
         names = ("antenna",) + tuple(b.region for b in lay.boxes)
         origin = np.asarray(lay.frame.offset_cells, dtype=float) * d
         return ShapeSites(
-            np.concatenate(parts), d, origin, np.concatenate(regions), names, float(self.ideal_volume_nm3(params))
+            np.concatenate(blocks), d, origin, np.concatenate(regions), names, float(self.ideal_volume_nm3(params)),
+            np.concatenate(part), tuple(antenna_parts) + names[1:],
         )
+
+    def _antenna_parts(self, params, frame, x_nm, y_nm):
+        """Names of the antenna's parts and the part of each footprint column (default: one part)."""
+        return ("antenna",), np.zeros(np.shape(x_nm), dtype=np.int64)
 
     def _bounding_grid_shape(self, params, spacing_nm, *, substrate=None, medium_layer=None):
         lay = self._layout(params, spacing_nm, substrate, medium_layer)

@@ -87,6 +87,10 @@ class GapDimer(FilmFamily):
         inside = (ax > g2) & (ax < g2 + arm)
         return np.where(inside, frame.realised["width_nm"] / 2, -np.inf)
 
+    def _antenna_parts(self, params, frame, x_nm, y_nm):
+        # The two arms on either side of the gap centre (x = 0).
+        return ("left_arm", "right_arm"), (np.asarray(x_nm) > 0).astype(np.int64)
+
     def _top_polygons(self, params):
         g2, arm, hy = params["gap_nm"] / 2, params["arm_length_nm"], params["width_nm"] / 2
         return (("antenna", rectangle(-g2 - arm, -g2, -hy, hy)), ("antenna", rectangle(g2, g2 + arm, -hy, hy)))

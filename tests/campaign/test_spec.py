@@ -38,7 +38,7 @@ def write(tmp_path, text):
 def test_good_file(tmp_path):
     spec = load_campaign(write(tmp_path, GOOD))
     assert spec.family == "box" and spec.varied == ("length_nm", "width_nm")
-    assert spec.fixed == {"thickness_nm": 30.0} and spec.tol == 1e-5 and spec.polarizability == "ldr"
+    assert spec.fixed == {"thickness_nm": 30.0} and spec.tol == 1e-5 and spec.polarizability == "fcd"
 
 
 def test_every_problem_is_listed_at_once(tmp_path):
