@@ -5,12 +5,12 @@ cross sections and fields.  It imports neither the materials nor the shapes.
 
 Main entry points: :class:`Lattice`, :func:`solve`, :func:`solve_sweep`,
 :func:`solve_polarizations`, :func:`near_field`, :func:`c_sca_far_field_nm2`,
-:func:`memory_estimate_bytes`, :func:`extrapolate_to_zero_spacing`.
+:func:`memory_estimate_bytes`, :func:`estimate_zero_spacing`.
 """
 
 from __future__ import annotations
 
-from ._extrapolate import extrapolate_to_zero_spacing
+from ._extrapolate import ZERO_SPACING_METHODS, ZeroSpacingEstimate, estimate_zero_spacing, extrapolate_to_zero_spacing
 from ._green import dense_interaction_matrix, green_tensor
 from ._interaction import FFTInteraction, set_fft_workers
 from ._krylov import METHODS as KRYLOV_METHODS
@@ -36,6 +36,9 @@ __all__ = [
     "c_sca_far_field_nm2",
     "memory_estimate_bytes",
     "extrapolate_to_zero_spacing",
+    "estimate_zero_spacing",
+    "ZeroSpacingEstimate",
+    "ZERO_SPACING_METHODS",
     "polarizability",
     "ldr_coefficients",
     "green_tensor",
