@@ -82,8 +82,9 @@ def add_simulate_command(sub, units):
     p.add_argument("--tol", type=float, default=1e-5, help="relative residual to stop at (default 1e-5)")
     p.add_argument("--max-iter", type=int, default=3000, help="iteration cap per wavelength (default 3000)")
     p.add_argument("--refine", action="store_true",
-                   help="also solve at 1.25, 1.5 and 2 times the spacing and extrapolate the cross sections to "
-                   "d -> 0 with an error bar")
+                   help="also solve at 1.25, 1.5, 1.75, 2 and 2.5 times the spacing and estimate the cross "
+                   "sections at d -> 0 with an error bar (extrapolated when the values converge regularly, "
+                   "else bounded by the trend of the finest spacings)")
     g = p.add_argument_group("surroundings (film families)")
     g.add_argument("--substrate-thickness-nm", type=float, help="add a substrate slab under the film of this thickness [nm]")
     g.add_argument("--substrate-size-nm", type=float, help="lateral size of the substrate slab [nm] (a convergence setting)")
@@ -254,7 +255,8 @@ def run_simulate(args):
               f"{result.settings.dtype}; incidence polar {result.incidence.polar_deg:g} deg, azimuth "
               f"{result.incidence.azimuth_deg:g} deg, polarization {result.incidence.polarization_deg:g} deg; "
               f"hotspot ({hs}) nm")
-        fmt = {"wavelength_nm": "{:g}", "converged": "{}", "n_iter": "{}", "residual": "{:.2e}"}
+        fmt = {"wavelength_nm": "{:g}", "converged": "{}", "n_iter": "{}", "residual": "{:.2e}",
+               **{c: "{}" for c in columns if c.endswith("_method")}}
         cells = [[fmt.get(c, "{:.5g}").format(r[c]) for c in columns] for r in rows]
         widths = [max(len(c), *(len(x[i]) for x in cells)) for i, c in enumerate(columns)]
         print("  ".join(c.ljust(w) for c, w in zip(columns, widths)).rstrip())

@@ -19,25 +19,30 @@ from .solver import (
     Incidence,
     Lattice,
     SolverSettings,
-    extrapolate_to_zero_spacing,
+    estimate_zero_spacing,
     memory_estimate_bytes,
     solve_sweep,
 )
 
 __all__ = ["simulate", "check_memory", "check_settings", "SimulationResult", "default_memory_limit_bytes", "REFINE_FACTORS", "SPECTRUM_COLUMNS"]
 
-#: Spacings solved under refinement, as multiples of the requested (finest) spacing.
-REFINE_FACTORS = (1.0, 1.25, 1.5, 2.0)
+#: Spacings solved under refinement, as multiples of the requested (finest) spacing.  Six
+#: spacings (cost 2.18x the finest solve) halve the median error bar of four (1.93x) and
+#: let the outlier check work (benchmarks/bench_refine_coverage.py, README).
+REFINE_FACTORS = (1.0, 1.25, 1.5, 1.75, 2.0, 2.5)
 
 #: Column order of a spectrum table (CSV and printed).
 SPECTRUM_COLUMNS = ("wavelength_nm", "c_ext_nm2", "c_abs_nm2", "c_sca_nm2", "converged", "n_iter", "residual")
 _REFINED_COLUMNS = (
-    "c_ext_extrapolated_nm2",
-    "c_ext_error_nm2",
-    "c_abs_extrapolated_nm2",
-    "c_abs_error_nm2",
-    "c_sca_extrapolated_nm2",
-    "c_sca_error_nm2",
+    "c_ext_limit_nm2",
+    "c_ext_limit_error_nm2",
+    "c_ext_limit_method",
+    "c_abs_limit_nm2",
+    "c_abs_limit_error_nm2",
+    "c_abs_limit_method",
+    "c_sca_limit_nm2",
+    "c_sca_limit_error_nm2",
+    "c_sca_limit_method",
 )
 
 
@@ -75,8 +80,10 @@ class SimulationResult:
     residual : ndarray, shape (W,)
         True relative residual ||b - A x|| / ||b|| [-].
     refined : dict or None
-        Under refinement: ``spacings_nm`` and, per cross section, the extrapolated
-        value and its error bar [nm^2], keys as in ``_REFINED_COLUMNS``.
+        Under refinement: ``spacings_nm`` and, per cross section and wavelength, the
+        zero-spacing estimate, its error bar [nm^2] and how it was made
+        (``"extrapolated"`` in the asymptotic regime, else ``"bounded"``), keys as in
+        ``_REFINED_COLUMNS`` (see :func:`surrogate.solver.estimate_zero_spacing`).
     solutions : tuple
         The solver's per-wavelength solutions of the finest lattice (for fields).
     lattice : Lattice
@@ -138,7 +145,8 @@ class SimulationResult:
             }
             if self.refined is not None:
                 for key in _REFINED_COLUMNS:
-                    row[key] = float(self.refined[key][i])
+                    v = self.refined[key][i]
+                    row[key] = str(v) if key.endswith("_method") else float(v)
             out.append(row)
         return out
 
@@ -225,8 +233,9 @@ def simulate(
     incidence : Incidence, optional
         The incident plane wave (default: normal incidence along -z, field along x).
     refine : bool
-        Also solve at ``REFINE_FACTORS`` times the spacing and extrapolate each cross
-        section to d -> 0 with an error bar.
+        Also solve at ``REFINE_FACTORS`` times the spacing and estimate each cross
+        section at d -> 0 with an error bar, extrapolating only when the values are
+        in the asymptotic regime.
     substrate, medium_layer : SubstrateSlab, MediumLayer, optional
         Surroundings of a film family (regions ``substrate`` and ``medium_layer``; give
         their materials in ``region_materials``).
@@ -289,9 +298,10 @@ def simulate(
         refined = {"spacings_nm": used.tolist()}
         for name in ("c_ext", "c_abs", "c_sca"):
             values = np.array([arr(sols, f"{name}_nm2") for _, _, sols in per_spacing])  # (S, W)
-            est = [extrapolate_to_zero_spacing(used, values[:, i]) for i in range(wl.size)]
-            refined[f"{name}_extrapolated_nm2"] = np.array([e[0] for e in est])
-            refined[f"{name}_error_nm2"] = np.array([e[1] for e in est])
+            est = [estimate_zero_spacing(used, values[:, i]) for i in range(wl.size)]
+            refined[f"{name}_limit_nm2"] = np.array([e.value for e in est])
+            refined[f"{name}_limit_error_nm2"] = np.array([e.error for e in est])
+            refined[f"{name}_limit_method"] = np.array([e.method for e in est])
         conv_all = np.all([arr(sols, "converged", bool) for _, _, sols in per_spacing], axis=0)
     by_part = {
         name: np.array([float(np.sum(s.c_abs_site_nm2[sites0.part == i])) for s in sols0])

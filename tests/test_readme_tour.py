@@ -178,7 +178,7 @@ def test_tour_simulate_prints_spectrum_figures_and_writes_pictures(tour):
         assert "# figures of merit" in out and re.search(r"^resonance_nm\s+\d", out, re.M)
         assert re.search(r"^converged\s+True", out, re.M)
         if "--refine" in argv:  # the refinement columns: a d -> 0 estimate with its error bar
-            assert "c_ext_extrapolated_nm2" in out and "c_ext_error_nm2" in out
+            assert "c_ext_limit_nm2" in out and "c_ext_limit_error_nm2" in out and "c_ext_limit_method" in out
         if "--laser-nm" in argv:
             laser = float(argv[argv.index("--laser-nm") + 1])
             assert re.search(rf"^{laser:g}\s", out, re.M)  # the laser is in the sweep

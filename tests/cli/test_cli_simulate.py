@@ -37,8 +37,9 @@ def test_simulate_json_and_refine(capsys):
     assert code == 0
     data = json.loads(capsys.readouterr().out)
     row = data["spectrum"][0]
-    assert data["refine_spacings_nm"] and len(data["refine_spacings_nm"]) == 4
-    assert row["c_ext_error_nm2"] > 0 and row["converged"] is True
+    assert data["refine_spacings_nm"] and len(data["refine_spacings_nm"]) == 6
+    assert row["c_ext_limit_error_nm2"] > 0 and row["converged"] is True
+    assert row["c_ext_limit_method"] in ("extrapolated", "bounded")
 
 
 @pytest.mark.parametrize(
