@@ -11,7 +11,8 @@ from .helpers import sphere_lattice
 
 def test_defaults_are_the_documented_ones():
     s = SolverSettings()
-    assert (s.polarizability, s.method, s.tol, s.max_iter, s.dtype, s.warm_start) == ("fcd", "cocg", 1e-5, 5000, "complex128", True)
+    assert (s.polarizability, s.method, s.tol, s.max_iter, s.dtype, s.warm_start) == ("fcd", "cocg", 1e-5, 5000, "auto", True)
+    assert s.numpy_dtype == np.complex128 and s.replace(tol=1e-4).numpy_dtype == np.complex64
     assert SolverSettings(dtype=np.complex64).dtype == "complex64"
     assert SolverSettings.from_dict(s.replace(tol=1e-3).to_dict()) == s.replace(tol=1e-3)
 

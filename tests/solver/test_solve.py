@@ -90,13 +90,14 @@ def test_complex64_reports_stagnation_honestly_on_hard_gold():
 def test_non_convergence_is_a_result_not_an_exception():
     lat = box_lattice(20, 5, 5, 4.0)
     with pytest.warns(NotConvergedWarning, match="converged=False"):
-        s = solve(lat, [GOLD_700], 704.5, max_iter=5)
+        s = solve(lat, [GOLD_700], 704.5, max_iter=5, dtype=np.complex128)
     assert not s.converged
     assert s.n_iter == 5 and s.stop_reason == "max_iter"
     assert s.residual > s.tol
     # the true residual is reported: recompute it with a fresh solve started there
-    s2 = solve(lat, [GOLD_700], 704.5, x0=s.polarization)
-    assert s2.converged and s2.n_iter < solve(lat, [GOLD_700], 704.5).n_iter + 5
+    # (double precision: in complex64 a restart loses the Krylov history's accuracy)
+    s2 = solve(lat, [GOLD_700], 704.5, x0=s.polarization, dtype=np.complex128)
+    assert s2.converged and s2.n_iter < solve(lat, [GOLD_700], 704.5, dtype=np.complex128).n_iter + 5
 
 
 def test_memory_limit_refuses_before_allocating():
