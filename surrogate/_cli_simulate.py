@@ -76,8 +76,9 @@ def add_simulate_command(sub, units):
     p.add_argument("--polarizability", choices=("fcd", "ldr", "rrcm"), default="fcd",
                    help="dipole polarizability: fcd (filtered coupled dipole, default), ldr (lattice dispersion "
                    "relation), rrcm (Clausius-Mossotti with radiative reaction)")
-    p.add_argument("--dtype", choices=("complex128", "complex64"), default="complex128",
-                   help="precision of the FFT interaction and Krylov vectors (default complex128)")
+    p.add_argument("--dtype", choices=("auto", "complex128", "complex64"), default="auto",
+                   help="precision of the FFT interaction and Krylov vectors (default auto: complex64 from "
+                   "--tol 1e-4 up, complex128 below)")
     p.add_argument("--method", choices=("cocg", "bicgstab", "gmres"), default="cocg", help="Krylov solver (default cocg)")
     p.add_argument("--tol", type=float, default=1e-5, help="relative residual to stop at (default 1e-5)")
     p.add_argument("--max-iter", type=int, default=3000, help="iteration cap per wavelength (default 3000)")

@@ -30,7 +30,7 @@ Schema (our own; every length in nm)
     tol = 1e-5
     max_iter = 3000
     polarizability = "fcd"           # fcd | ldr | rrcm
-    dtype = "complex128"             # complex128 | complex64 (precision of the transforms)
+    dtype = "auto"                   # auto | complex128 | complex64 (auto: complex64 from tol 1e-4 up)
 
 Every parameter of the family is either in ``bounds`` or in ``fixed``, never in
 both.  Problems are collected and reported together, each naming the key, the
@@ -58,7 +58,7 @@ _OPTICS = {
 }
 _SOLVER = {
     "spacing_nm": None, "wavelengths_nm": None, "tol": 1e-5, "max_iter": 3000, "polarizability": "fcd",
-    "dtype": "complex128",
+    "dtype": "auto",
 }
 #: Keys added after the first stores were written, with the value an older store implies.
 #: (Older campaign files said polarizability explicitly, so its default change is not here.)
@@ -98,7 +98,7 @@ class CampaignSpec:
     incidence_polar_deg: float = 0.0
     incidence_azimuth_deg: float = 0.0
     polarization_deg: float = 0.0
-    dtype: str = "complex128"
+    dtype: str = "auto"
 
     def to_dict(self):
         """A JSON-ready dict (stored in the campaign's store)."""
@@ -246,8 +246,8 @@ def parse_campaign(data, *, source="campaign"):
         problems.append(f"solver.max_iter = {sections['max_iter']}: must be in [1, 100000]")
     if sections.get("polarizability") not in (None, "fcd", "ldr", "rrcm"):
         problems.append(f"solver.polarizability = {sections['polarizability']!r}: must be one of fcd, ldr, rrcm")
-    if sections.get("dtype") not in (None, "complex128", "complex64"):
-        problems.append(f"solver.dtype = {sections['dtype']!r}: must be one of complex128, complex64")
+    if sections.get("dtype") not in (None, "auto", "complex128", "complex64"):
+        problems.append(f"solver.dtype = {sections['dtype']!r}: must be one of auto, complex128, complex64")
     check_range("incidence_polar_deg", 0.0, 180.0, "deg")
     check_range("incidence_azimuth_deg", -360.0, 360.0, "deg")
     check_range("polarization_deg", -180.0, 180.0, "deg")
