@@ -29,11 +29,15 @@ from ._lattice import Lattice
 from ._memory import default_memory_limit_bytes, memory_estimate_bytes
 from ._observables import cross_sections, incident_field
 from ._polarizability import POLARIZABILITIES, polarizability
+from ._precondition import SHIFTS, CirculantPreconditioner, circulant_pays
 
-__all__ = ["DipoleSolution", "solve", "solve_sweep", "solve_polarizations", "SOLVE_METHODS"]
+__all__ = ["DipoleSolution", "solve", "solve_sweep", "solve_polarizations", "SOLVE_METHODS", "PRECONDITIONERS"]
 
 #: Methods accepted by :func:`solve`.
 SOLVE_METHODS = ("cocg", "bicgstab", "gmres", "direct")
+
+#: Preconditioner choices of :func:`solve` (see ``_precondition.py``).
+PRECONDITIONERS = ("none", "circulant", "auto")
 
 _DTYPES = {np.dtype(np.complex128): "complex128", np.dtype(np.complex64): "complex64"}
 
@@ -84,6 +88,9 @@ class DipoleSolution:
     equivalent_radius_nm : float
         Radius of the sphere with the lattice's volume [nm]; the efficiencies
         divide by ``pi a_eq^2``.
+    preconditioner : str
+        Preconditioner used: ``"none"`` or ``"circulant"`` (what ``"auto"``
+        resolved to).
     """
 
     wavelength_nm: float
@@ -108,6 +115,7 @@ class DipoleSolution:
     tol: float
     dtype: str
     equivalent_radius_nm: float
+    preconditioner: str = "none"
 
     @property
     def k_per_nm(self) -> float:
@@ -158,11 +166,23 @@ def _check_eps(eps, n_materials, name="eps"):
     return e
 
 
-def _check_common(lattice, wavelength_nm, n_host, e_direction, k_direction, kind, method, tol, max_iter, dtype, memory_limit_bytes):
+def _resolve_preconditioner(lattice, kind, method, preconditioner):
+    check_choice("preconditioner", preconditioner, PRECONDITIONERS)
+    if preconditioner == "circulant" and method != "cocg":
+        raise InvalidParameterError(f"preconditioner must be 'none' or 'auto' with method={method!r} (only COCG takes one); got 'circulant'")
+    if preconditioner == "auto":
+        on = method == "cocg" and circulant_pays(lattice.grid_shape, lattice.n_dipoles, kind)
+        return "circulant" if on else "none"
+    return preconditioner
+
+
+def _check_common(lattice, wavelength_nm, n_host, e_direction, k_direction, kind, method, tol, max_iter, dtype, memory_limit_bytes,
+                  preconditioner="none"):
     if not isinstance(lattice, Lattice):
         raise InvalidTypeError(f"lattice must be a surrogate.solver.Lattice; got {type(lattice).__name__}")
     check_choice("polarizability", kind, POLARIZABILITIES)
     check_choice("method", method, SOLVE_METHODS)
+    pc = _resolve_preconditioner(lattice, kind, method, preconditioner)
     n_host = check_real("n_host", n_host, low=0.0, low_open=True)
     tol = check_real("tol", tol, low=0.0, high=1.0, low_open=True, high_open=True)
     max_iter = check_int("max_iter", max_iter, low=1)
@@ -180,13 +200,13 @@ def _check_common(lattice, wavelength_nm, n_host, e_direction, k_direction, kind
         limit = default_memory_limit_bytes()
     else:
         limit = check_int("memory_limit_bytes", memory_limit_bytes, low=1)
-    est = memory_estimate_bytes(lattice, dt, method=method)
+    est = memory_estimate_bytes(lattice, dt, method=method, preconditioner=pc)
     if est > limit:
         raise LatticeTooLargeError(
             f"lattice of {lattice.n_dipoles} dipoles needs about {est / 2**30:.2f} GiB, over the limit of "
             f"{limit / 2**30:.2f} GiB; use a larger spacing_nm or raise memory_limit_bytes"
         )
-    return n_host, tol, max_iter, dt, kdir, edir
+    return n_host, tol, max_iter, dt, kdir, edir, pc
 
 
 def _check_wavelength(lattice, wavelength_nm, n_host, kind):
@@ -203,8 +223,10 @@ def _check_wavelength(lattice, wavelength_nm, n_host, kind):
 class _System:
     """Scaled system of one lattice at one wavelength (shared by polarizations)."""
 
-    def __init__(self, lattice, eps, wavelength_nm, n_host, kind, method, dtype, s_factor):
+    def __init__(self, lattice, eps, wavelength_nm, n_host, kind, method, dtype, s_factor, preconditioner="none"):
         self.lattice = lattice
+        self.preconditioner = preconditioner
+        self.pc = None
         self.kind = kind
         self.k = 2.0 * np.pi * n_host / wavelength_nm
         self.dtype = dtype
@@ -233,6 +255,11 @@ class _System:
         self.s3 = sqrt_alpha.astype(self.dtype)  # D = diag(sqrt(alpha)), per component
         # The original residual r = E_inc - A P and the scaled one r_s satisfy r = r_s / D.
         self.w3 = 1.0 / np.abs(sqrt_alpha)
+        if self.preconditioner == "circulant":
+            self.pc = CirculantPreconditioner(
+                self.lattice.indices, self.lattice.spacing_nm, self.k, self.alpha_site,
+                filtered=self.kind == "fcd", shift=SHIFTS[self.kind], dtype=self.dtype,
+            )
 
     def matvec_scaled(self, y):
         # (I - D G D) y, see module docstring.
@@ -266,7 +293,7 @@ class _System:
             # One BLAS thread: OpenBLAS workers otherwise contend with the FFT threads.
             kr = krylov_solve(
                 self.matvec_scaled, bs, method=self.method, x0=y0, r0=r0, weight=self.w3,
-                tol=tol, max_iter=max_iter, restart=restart,
+                tol=tol, max_iter=max_iter, restart=restart, preconditioner=self.pc,
             )
         p = (self.s3 * kr.x).astype(np.complex128).reshape(n3 // 3, 3)
         return p, kr.converged, kr.n_iter, kr.matvecs + extra, kr.residual, kr.stop_reason
@@ -287,6 +314,7 @@ def _finish(system, p, e_inc, wl, conv, n_iter, matvecs, res, reason, t0, *, kin
         matvecs=int(matvecs), elapsed_s=time.perf_counter() - t0, stop_reason=reason, n_host=n_host,
         k_direction=kdir, e_direction=edir, eps=eps, alpha_nm3=system.alpha_mat, spacing_nm=lat.spacing_nm,
         tol=tol, dtype=_DTYPES[np.dtype(dt)], equivalent_radius_nm=lat.equivalent_radius_nm,
+        preconditioner=system.preconditioner,
     )
 
 
@@ -305,6 +333,7 @@ def solve(
     x0=None,
     dtype=np.complex128,
     memory_limit_bytes=None,
+    preconditioner="none",
 ):
     """Solve the coupled-dipole equations for one plane wave.
 
@@ -344,6 +373,12 @@ def solve(
     memory_limit_bytes : int, optional
         Refuse lattices whose estimate (:func:`memory_estimate_bytes`) exceeds
         it; default 80 % of the physical memory.
+    preconditioner : {"none", "circulant", "auto"}, default "none"
+        ``"circulant"``: COCG preconditioned by a lateral Strang circulant,
+        exact across the thinnest axis, with a loss shift (``_precondition.py``);
+        ``"auto"``: the circulant where the benchmark shows it saves work
+        (:func:`surrogate.solver._precondition.circulant_pays`), else none.
+        Only ``method="cocg"`` takes ``"circulant"``.
 
     Returns
     -------
@@ -363,13 +398,14 @@ def solve(
         For bad input.
     """
     t0 = time.perf_counter()
-    n_host, tol, max_iter, dt, kdir, edir = _check_common(
-        lattice, wavelength_nm, n_host, e_direction, k_direction, polarizability, method, tol, max_iter, dtype, memory_limit_bytes
+    n_host, tol, max_iter, dt, kdir, edir, pc = _check_common(
+        lattice, wavelength_nm, n_host, e_direction, k_direction, polarizability, method, tol, max_iter, dtype, memory_limit_bytes,
+        preconditioner,
     )
     wl = _check_wavelength(lattice, wavelength_nm, n_host, polarizability)
     e = _check_eps(eps, lattice.n_materials)
     x0 = _check_x0(x0, lattice)
-    system = _System(lattice, e, wl, n_host, polarizability, method, dt, _s_factor(kdir, edir))
+    system = _System(lattice, e, wl, n_host, polarizability, method, dt, _s_factor(kdir, edir), pc)
     e_inc = incident_field(lattice.positions_nm, system.k, kdir, edir)
     p, conv, n_iter, mv, res, reason = system.solve_one(e_inc, tol=tol, max_iter=max_iter, x0=x0)
     if not conv:
@@ -409,6 +445,7 @@ def solve_polarizations(
     max_iter=5000,
     dtype=np.complex128,
     memory_limit_bytes=None,
+    preconditioner="none",
 ):
     """Solve several incident polarizations sharing one interaction set-up.
 
@@ -427,18 +464,19 @@ def solve_polarizations(
     if e_dirs.ndim != 2 or e_dirs.shape[1] != 3 or e_dirs.shape[0] == 0:
         raise InvalidParameterError(f"e_directions must have shape (P, 3); got shape {e_dirs.shape}")
     checked = [
-        _check_common(lattice, wavelength_nm, n_host, ed, k_direction, polarizability, method, tol, max_iter, dtype, memory_limit_bytes)
+        _check_common(lattice, wavelength_nm, n_host, ed, k_direction, polarizability, method, tol, max_iter, dtype, memory_limit_bytes,
+                      preconditioner)
         for ed in e_dirs
     ]
-    n_host, tol, max_iter, dt, kdir, _ = checked[0]
+    n_host, tol, max_iter, dt, kdir, _, pc = checked[0]
     wl = _check_wavelength(lattice, wavelength_nm, n_host, polarizability)
     e = _check_eps(eps, lattice.n_materials)
     out = []
     system = None
-    for *_, edir in checked:
+    for *_, edir, _pc in checked:
         s = _s_factor(kdir, edir)
         if system is None:
-            system = _System(lattice, e, wl, n_host, polarizability, method, dt, s)
+            system = _System(lattice, e, wl, n_host, polarizability, method, dt, s, pc)
         elif polarizability == "ldr":
             system.set_diagonal(e, n_host, s)
         e_inc = incident_field(lattice.positions_nm, system.k, kdir, edir)
@@ -463,6 +501,7 @@ def solve_sweep(
     max_iter=5000,
     dtype=np.complex128,
     memory_limit_bytes=None,
+    preconditioner="none",
     warm_start=True,
     progress=None,
 ):
@@ -510,6 +549,7 @@ def solve_sweep(
             lattice, eps, float(wl), n_host=n_host, e_direction=e_direction, k_direction=k_direction,
             polarizability=polarizability, method=method, tol=tol, max_iter=max_iter,
             x0=prev if (warm_start and method != "direct") else None, dtype=dtype, memory_limit_bytes=memory_limit_bytes,
+            preconditioner=preconditioner,
         )
         out.append(sol)
         prev = sol.polarization if np.all(np.isfinite(sol.polarization)) else None
