@@ -236,7 +236,8 @@ class CirculantPreconditioner:
         inv = self._inv_blocks
         y[self._stored] = np.einsum("fij,fj->fi", inv, x[self._stored])
         # Frequency -f uses the transposed block of f (module docstring).
-        y[self._partner] = np.einsum("fji,fj->fi", inv[:n_pair], x[self._partner])
+        # (x^T B, a row times the block, reads the block row by row.)
+        y[self._partner] = np.matmul(x[self._partner][:, None, :], inv[:n_pair])[:, 0, :]
         buf = scipy.fft.ifft2(y.reshape(nx, ny, nz, 3), axes=(0, 1), overwrite_x=True)
         out = np.empty_like(u)
         out[:, self._perm] = buf[self._ix, self._iy, self._iz]
