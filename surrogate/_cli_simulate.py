@@ -80,6 +80,9 @@ def add_simulate_command(sub, units):
                    help="precision of the FFT interaction and Krylov vectors (default auto: complex64 from "
                    "--tol 1e-4 up, complex128 below)")
     p.add_argument("--method", choices=("cocg", "bicgstab", "gmres"), default="cocg", help="Krylov solver (default cocg)")
+    p.add_argument("--preconditioner", choices=("auto", "none", "circulant"), default="auto",
+                   help="COCG preconditioner: auto (default: the circulant where measured to save time, i.e. with "
+                   "ldr/rrcm on films and sparse boxes; never with fcd), none, circulant")
     p.add_argument("--tol", type=float, default=1e-5, help="relative residual to stop at (default 1e-5)")
     p.add_argument("--max-iter", type=int, default=3000, help="iteration cap per wavelength (default 3000)")
     p.add_argument("--refine", action="store_true",
@@ -142,10 +145,10 @@ def _settings(args):
     from .solver import SolverSettings
 
     named = {"polarizability": "--polarizability", "method": "--method", "tol": "--tol", "max_iter": "--max-iter",
-             "dtype": "--dtype"}
+             "dtype": "--dtype", "preconditioner": "--preconditioner"}
     try:
         return SolverSettings(polarizability=args.polarizability, method=args.method, tol=args.tol,
-                              max_iter=args.max_iter, dtype=args.dtype)
+                              max_iter=args.max_iter, dtype=args.dtype, preconditioner=args.preconditioner)
     except InvalidParameterError as exc:
         # name the option as the user typed it
         field = str(exc).split(" ", 1)[0]

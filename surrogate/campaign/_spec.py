@@ -31,6 +31,7 @@ Schema (our own; every length in nm)
     max_iter = 3000
     polarizability = "fcd"           # fcd | ldr | rrcm
     dtype = "auto"                   # auto | complex128 | complex64 (auto: complex64 from tol 1e-4 up)
+    preconditioner = "auto"          # auto | none | circulant (auto: where measured to save time)
 
 Every parameter of the family is either in ``bounds`` or in ``fixed``, never in
 both.  Problems are collected and reported together, each naming the key, the
@@ -58,11 +59,14 @@ _OPTICS = {
 }
 _SOLVER = {
     "spacing_nm": None, "wavelengths_nm": None, "tol": 1e-5, "max_iter": 3000, "polarizability": "fcd",
-    "dtype": "auto",
+    "dtype": "auto", "preconditioner": "auto",
 }
 #: Keys added after the first stores were written, with the value an older store implies.
 #: (Older campaign files said polarizability explicitly, so its default change is not here.)
-ADDED_SPEC_DEFAULTS = {"incidence_polar_deg": 0.0, "incidence_azimuth_deg": 0.0, "polarization_deg": 0.0, "dtype": "complex128"}
+ADDED_SPEC_DEFAULTS = {
+    "incidence_polar_deg": 0.0, "incidence_azimuth_deg": 0.0, "polarization_deg": 0.0, "dtype": "complex128",
+    "preconditioner": "none",
+}
 _NAME = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_-]{0,63}$")
 
 
@@ -99,6 +103,7 @@ class CampaignSpec:
     incidence_azimuth_deg: float = 0.0
     polarization_deg: float = 0.0
     dtype: str = "auto"
+    preconditioner: str = "auto"
 
     def to_dict(self):
         """A JSON-ready dict (stored in the campaign's store)."""
@@ -227,7 +232,7 @@ def parse_campaign(data, *, source="campaign"):
                 problems.append(f"{tname}.{key}: unknown key; allowed: {', '.join(defaults)}")
         values = {}
         for key, default in defaults.items():
-            kind = "str" if key in ("material", "wavelengths_nm", "polarizability", "dtype") else ("int" if key == "max_iter" else "number")
+            kind = "str" if key in ("material", "wavelengths_nm", "polarizability", "dtype", "preconditioner") else ("int" if key == "max_iter" else "number")
             values[key] = need(table, key, kind, default, where=f"{tname}.")
         sections.update(values)
 
@@ -248,6 +253,8 @@ def parse_campaign(data, *, source="campaign"):
         problems.append(f"solver.polarizability = {sections['polarizability']!r}: must be one of fcd, ldr, rrcm")
     if sections.get("dtype") not in (None, "auto", "complex128", "complex64"):
         problems.append(f"solver.dtype = {sections['dtype']!r}: must be one of auto, complex128, complex64")
+    if sections.get("preconditioner") not in (None, "auto", "none", "circulant"):
+        problems.append(f"solver.preconditioner = {sections['preconditioner']!r}: must be one of auto, none, circulant")
     check_range("incidence_polar_deg", 0.0, 180.0, "deg")
     check_range("incidence_azimuth_deg", -360.0, 360.0, "deg")
     check_range("polarization_deg", -180.0, 180.0, "deg")
@@ -288,6 +295,7 @@ def parse_campaign(data, *, source="campaign"):
         incidence_polar_deg=float(sections["incidence_polar_deg"]),
         incidence_azimuth_deg=float(sections["incidence_azimuth_deg"]),
         polarization_deg=float(sections["polarization_deg"]), dtype=sections["dtype"],
+        preconditioner=sections["preconditioner"],
     )
 
 

@@ -28,7 +28,8 @@ def evaluate_design(spec, params):
     spec = {**ADDED_SPEC_DEFAULTS, **spec}  # an older store's spec lacks the newer keys
     wl = parse_wavelength_range(spec["wavelengths_nm"], name="solver.wavelengths_nm")
     settings = SolverSettings(
-        polarizability=spec["polarizability"], tol=spec["tol"], max_iter=spec["max_iter"], dtype=spec["dtype"]
+        polarizability=spec["polarizability"], tol=spec["tol"], max_iter=spec["max_iter"], dtype=spec["dtype"],
+        preconditioner=spec["preconditioner"],
     )
     incidence = Incidence(spec["incidence_polar_deg"], spec["incidence_azimuth_deg"], spec["polarization_deg"])
     ev = design.evaluate_design(

@@ -19,7 +19,7 @@ from ._memory import memory_estimate_bytes
 from ._nearfield import NEAR_FIELD_GREENS, c_sca_far_field_nm2, far_field_amplitude, near_field
 from ._polarizability import POLARIZABILITIES, ldr_coefficients, polarizability
 from ._solve import SOLVE_METHODS, DipoleSolution, solve, solve_polarizations, solve_sweep
-from ._settings import PRECISIONS, SolverSettings
+from ._settings import PRECISIONS, PRECONDITIONERS, SolverSettings
 from ._incidence import Incidence
 
 __all__ = [
@@ -28,6 +28,7 @@ __all__ = [
     "SolverSettings",
     "Incidence",
     "PRECISIONS",
+    "PRECONDITIONERS",
     "solve",
     "solve_sweep",
     "solve_polarizations",

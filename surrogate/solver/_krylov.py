@@ -28,6 +28,8 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse.linalg as spla
 
+from ..errors import InvalidParameterError
+
 __all__ = ["KrylovResult", "METHODS", "krylov_solve"]
 
 #: Iterative methods accepted by :func:`krylov_solve`.
@@ -60,10 +62,22 @@ def _wnorm(w, v):
     return float(np.linalg.norm(w * v))
 
 
-def _cocg(matvec, b, x, r, w, b_norm, tol, max_iter):
+def _cocg(matvec, b, x, r, w, b_norm, tol, max_iter, precond=None):
     # COCG [1]: CG with the unconjugated bilinear form (u, v) = u^T v.
-    p = r.copy()
-    rho = np.dot(r, r)
+    #
+    # Preconditioned form.  Let M = M^T ~ A^-1 and write M = L L^T (a complex
+    # symmetric matrix has such a factor, e.g. L = M^(1/2); it is never formed).
+    # COCG on the complex-symmetric split system L^T A L u = L^T b, x = L u, has
+    # residual r~ = L^T r and direction p~ with p = L p~.  Substituting,
+    #   mu    = p~^T (L^T A L) p~ = p^T A p,             alpha = rho / mu,
+    #   x    += alpha p,          r -= alpha A p,
+    #   z     = M r,              rho' = r~^T r~ = r^T L L^T r = r^T z,
+    #   beta  = rho' / rho,       p = z + beta p         (L p~' = L L^T r + beta p),
+    # so only products with M appear and the residual r is the unpreconditioned
+    # one, on which the stopping test stays.  M = I gives plain COCG.
+    z = r if precond is None else precond(r)
+    p = z.copy()
+    rho = np.dot(r, z)
     it = 0
     while it < max_iter:
         if rho == 0 or not np.isfinite(rho):
@@ -78,11 +92,12 @@ def _cocg(matvec, b, x, r, w, b_norm, tol, max_iter):
         r -= alpha * q
         if _wnorm(w, r) <= tol * b_norm:
             return x, it, "tol"
-        rho_new = np.dot(r, r)
+        z = r if precond is None else precond(r)
+        rho_new = np.dot(r, z)
         beta = rho_new / rho
         rho = rho_new
         p *= beta
-        p += r
+        p += z
     return x, it, "max_iter"
 
 
@@ -146,7 +161,10 @@ def _gmres(matvec, b, x, r, w, b_norm, tol, max_iter, restart):
     return np.asarray(y, dtype=b.dtype), count[0], reason
 
 
-def krylov_solve(matvec, b, *, method="cocg", x0=None, r0=None, weight=None, tol=1e-5, max_iter=5000, restart=100, max_restarts=3):
+def krylov_solve(
+    matvec, b, *, method="cocg", x0=None, r0=None, weight=None, tol=1e-5, max_iter=5000, restart=100, max_restarts=3,
+    preconditioner=None,
+):
     """Solve ``A y = b`` for a complex-symmetric ``A`` given as a product.
 
     Parameters
@@ -173,12 +191,18 @@ def krylov_solve(matvec, b, *, method="cocg", x0=None, r0=None, weight=None, tol
     max_restarts : int
         Restarts allowed when the true residual misses ``tol`` after the
         recurrence reached it.
+    preconditioner : callable or None
+        ``v -> M v`` with ``M = M^T ~ A^-1`` (complex symmetric, so COCG keeps
+        its short recurrence); COCG only.  The stopping test and the true
+        residual stay on the unpreconditioned system.
 
     Returns
     -------
     KrylovResult
         ``residual`` is the true weighted relative residual.
     """
+    if preconditioner is not None and method != "cocg":
+        raise InvalidParameterError(f"method must be 'cocg' when a preconditioner is given; got {method!r}")
     counted = _Counted(matvec)
     w = np.ones(b.shape, dtype=float) if weight is None else weight
     b_norm = _wnorm(w, b)
@@ -201,7 +225,7 @@ def krylov_solve(matvec, b, *, method="cocg", x0=None, r0=None, weight=None, tol
             reason = "max_iter"
             break
         if method == "cocg":
-            x, it, reason = _cocg(counted, b, x, r, w, b_norm, tol, budget)
+            x, it, reason = _cocg(counted, b, x, r, w, b_norm, tol, budget, preconditioner)
         elif method == "bicgstab":
             x, it, reason = _bicgstab(counted, b, x, r, w, b_norm, tol, budget)
         else:

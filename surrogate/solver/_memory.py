@@ -7,6 +7,7 @@ import os
 import numpy as np
 
 from ._interaction import padded_shape
+from ._precondition import preconditioner_memory_bytes
 
 __all__ = ["memory_estimate_bytes", "default_memory_limit_bytes"]
 
@@ -15,7 +16,7 @@ __all__ = ["memory_estimate_bytes", "default_memory_limit_bytes"]
 _KRYLOV_VECTORS = {"cocg": 9, "bicgstab": 12, "gmres": 8}
 
 
-def memory_estimate_bytes(lattice, dtype=np.complex128, *, method="cocg", gmres_restart=100):
+def memory_estimate_bytes(lattice, dtype=np.complex128, *, method="cocg", gmres_restart=100, preconditioner="none"):
     """Peak bytes a solve on ``lattice`` will need.
 
     Parameters
@@ -28,6 +29,9 @@ def memory_estimate_bytes(lattice, dtype=np.complex128, *, method="cocg", gmres_
         Solver; ``"direct"`` needs the dense ``3N x 3N`` matrix twice.
     gmres_restart : int
         Krylov basis size of GMRES.
+    preconditioner : {"none", "circulant"}
+        Adds :func:`preconditioner_memory_bytes` of the bounding box and one
+        Krylov vector for ``"circulant"``.
 
     Returns
     -------
@@ -35,7 +39,7 @@ def memory_estimate_bytes(lattice, dtype=np.complex128, *, method="cocg", gmres_
         Estimated peak [bytes]: the six tensor transforms and three work grids
         of the padded FFT grid, the tensor build temporaries (about fourteen
         complex128 arrays of the unpadded grid), the Krylov vectors and the
-        observables' arrays.
+        observables' arrays, and the preconditioner if any.
     """
     item = np.dtype(dtype).itemsize
     n = lattice.n_dipoles
@@ -47,8 +51,12 @@ def memory_estimate_bytes(lattice, dtype=np.complex128, *, method="cocg", gmres_
     fft_bytes = 9 * m_pad * item + 2 * 2**20 * 2
     build_bytes = 14 * m_box * 16
     vectors = _KRYLOV_VECTORS[method] + (gmres_restart if method == "gmres" else 0)
+    pc_bytes = 0
+    if preconditioner == "circulant":
+        vectors += 1  # z = M r
+        pc_bytes = preconditioner_memory_bytes(grid, dtype)
     krylov_bytes = vectors * 3 * n * item + 12 * 3 * n * 16
-    return int(fft_bytes + build_bytes + krylov_bytes)
+    return int(fft_bytes + build_bytes + krylov_bytes + pc_bytes)
 
 
 def default_memory_limit_bytes():

@@ -16,7 +16,10 @@ from ..errors import InvalidParameterError, InvalidTypeError
 from ._krylov import METHODS as _KRYLOV
 from ._polarizability import POLARIZABILITIES
 
-__all__ = ["SolverSettings", "PRECISIONS"]
+__all__ = ["SolverSettings", "PRECISIONS", "PRECONDITIONERS"]
+
+#: Preconditioners of the COCG solve (see ``_precondition.py``).
+PRECONDITIONERS = ("none", "circulant", "auto")
 
 #: Floating-point precisions of the FFT interaction and Krylov vectors ("auto": see
 #: :attr:`SolverSettings.numpy_dtype`).
@@ -53,6 +56,12 @@ class SolverSettings:
         complex64 for ``tol >= 1e-4`` (measured: figures within 1.3e-5 of
         complex128, 0.67-0.74x the time) and complex128 for tighter tolerances,
         which single precision does not reach reliably.
+    preconditioner : {"auto", "none", "circulant"}, default "auto"
+        ``"circulant"``: COCG preconditioned by a lateral Strang circulant,
+        exact across the thinnest axis, with a loss shift (``_precondition.py``);
+        ``"auto"``: the circulant where the benchmark shows it saves time
+        (:func:`surrogate.solver._precondition.circulant_pays`), else none.
+        Only ``method="cocg"`` takes ``"circulant"``.
     warm_start : bool, default True
         In a sweep, start each wavelength from the previous wavelength's dipoles.
     memory_limit_bytes : int or None, default None
@@ -71,6 +80,7 @@ class SolverSettings:
     tol: float = 1e-5
     max_iter: int = 5000
     dtype: str = "auto"
+    preconditioner: str = "auto"
     warm_start: bool = True
     memory_limit_bytes: int | None = None
 
@@ -80,6 +90,11 @@ class SolverSettings:
         object.__setattr__(self, "tol", check_real("tol", self.tol, low=0.0, high=1.0, low_open=True, high_open=True))
         object.__setattr__(self, "max_iter", check_int("max_iter", self.max_iter, low=1, high=10_000_000))
         object.__setattr__(self, "dtype", _dtype_name(self.dtype))
+        check_choice("preconditioner", self.preconditioner, PRECONDITIONERS)
+        if self.preconditioner == "circulant" and self.method != "cocg":
+            raise InvalidParameterError(
+                f"preconditioner must be 'none' or 'auto' with method={self.method!r} (only COCG takes one); got 'circulant'"
+            )
         if not isinstance(self.warm_start, (bool, np.bool_)):
             raise InvalidTypeError(f"warm_start must be True or False; got {self.warm_start!r}")
         object.__setattr__(self, "warm_start", bool(self.warm_start))
