@@ -295,7 +295,8 @@ def circulant_pays(grid_shape, n_dipoles, kind):
     if kind == "fcd":
         # Never for FCD: measured in one run (disk-peg at 830 nm, d = 5 and 2.5 nm; gold film
         # 300 x 150 x 50 nm at 800 nm, d = 5 nm; tol 1e-4 and 1e-5), the circulant cut FCD's
-        # products to 0.58-0.88x but its wall time rose to 1.13-1.50x: FCD is already well
-        # conditioned and one application costs about one interaction product.
+        # products to 0.58-0.89x but its wall time was 0.90-1.50x (below 1 only for the
+        # disk-peg at d = 5 nm, tol 1e-5): FCD is already well conditioned and one
+        # application costs about one interaction product.
         return False
     return bool(fill <= 0.8 or flatness <= 0.5)
