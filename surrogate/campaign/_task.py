@@ -47,7 +47,8 @@ def evaluate_design(spec, params):
         "medium_index": sim.medium_index,
         "hotspot_nm": [float(v) for v in ev.hotspot_nm],
         "wavelengths_solved": int(sim.wavelength_nm.size),
-        "dtype": sim.settings.dtype,
+        "dtype": sim.solutions[0].dtype if sim.solutions else sim.settings.dtype,  # "auto" resolved
+        "preconditioner": sim.solutions[0].preconditioner if sim.solutions else sim.settings.preconditioner,
         "incidence": sim.incidence.to_dict(),
     }
     figures = {k: (float(v) if isinstance(v, (float, np.floating)) else v) for k, v in ev.figures.items()}
