@@ -141,30 +141,31 @@ def _surroundings(args):
     return out
 
 
+def _build(cls, options, args):
+    # cls(**fields) from the parsed options {field: option}; an error names the option as typed.
+    try:
+        return cls(**{field: getattr(args, option[2:].replace("-", "_")) for field, option in options.items()})
+    except InvalidParameterError as exc:
+        field = str(exc).split(" ", 1)[0]
+        raise InvalidParameterError(str(exc).replace(field, options.get(field, field), 1)) from None
+
+
 def _settings(args):
     from .solver import SolverSettings
 
-    named = {"polarizability": "--polarizability", "method": "--method", "tol": "--tol", "max_iter": "--max-iter",
-             "dtype": "--dtype", "preconditioner": "--preconditioner"}
-    try:
-        return SolverSettings(polarizability=args.polarizability, method=args.method, tol=args.tol,
-                              max_iter=args.max_iter, dtype=args.dtype, preconditioner=args.preconditioner)
-    except InvalidParameterError as exc:
-        # name the option as the user typed it
-        field = str(exc).split(" ", 1)[0]
-        raise InvalidParameterError(str(exc).replace(field, named.get(field, field), 1)) from None
+    return _build(SolverSettings, {
+        "polarizability": "--polarizability", "method": "--method", "tol": "--tol", "max_iter": "--max-iter",
+        "dtype": "--dtype", "preconditioner": "--preconditioner",
+    }, args)
 
 
 def _incidence(args):
     from .solver import Incidence
 
-    named = {"polar_deg": "--incidence-polar-deg", "azimuth_deg": "--incidence-azimuth-deg",
-             "polarization_deg": "--polarization-deg"}
-    try:
-        return Incidence(args.incidence_polar_deg, args.incidence_azimuth_deg, args.polarization_deg)
-    except InvalidParameterError as exc:
-        field = str(exc).split(" ", 1)[0]
-        raise InvalidParameterError(str(exc).replace(field, named.get(field, field), 1)) from None
+    return _build(Incidence, {
+        "polar_deg": "--incidence-polar-deg", "azimuth_deg": "--incidence-azimuth-deg",
+        "polarization_deg": "--polarization-deg",
+    }, args)
 
 
 def _absorption_by_part(ev):

@@ -15,7 +15,7 @@ from ._validation import check_positive_array, check_real
 from .errors import InvalidParameterError
 from .merit import figures_of_merit
 from .shapes import check_observation_clearance, get_family, observation_clearance
-from .simulate import SimulationResult, preconditioner_for_memory, check_memory, check_settings, simulate
+from .simulate import SimulationResult, check_memory, check_settings, simulate
 from .solver import near_field
 
 __all__ = ["evaluate_design", "DesignEvaluation", "map_grid_for", "LASER_FIGURES"]
@@ -153,8 +153,7 @@ def evaluate_design(
     surroundings = {k: v for k, v in (("substrate", substrate), ("medium_layer", medium_layer)) if v is not None}
     settings = check_settings(settings)
     # refuse an oversized lattice before any site array exists (the hotspot is found on the sites)
-    check_memory(fam, clean, d, surroundings=surroundings, memory_limit_bytes=settings.memory_limit_bytes,
-                 method=settings.method, dtype=settings.numpy_dtype, preconditioner=preconditioner_for_memory(settings))
+    check_memory(fam, clean, d, surroundings=surroundings, settings=settings)
     plane = fam.observation_plane(clean, d, hotspot_offset_nm=hotspot_offset_nm, **surroundings)
     hotspot = np.asarray(plane.point_nm, dtype=float)
     half, step = map_grid_for(fam, clean, d)

@@ -24,7 +24,7 @@ from .solver import (
     solve_sweep,
 )
 
-__all__ = ["simulate", "check_memory", "check_settings", "preconditioner_for_memory", "SimulationResult", "default_memory_limit_bytes", "REFINE_FACTORS", "SPECTRUM_COLUMNS"]
+__all__ = ["simulate", "check_memory", "check_settings", "SimulationResult", "default_memory_limit_bytes", "REFINE_FACTORS", "SPECTRUM_COLUMNS"]
 
 #: Spacings solved under refinement, as multiples of the requested (finest) spacing.  Six
 #: spacings (cost 2.18x the finest solve) halve the median error bar of four (1.93x) and
@@ -169,12 +169,13 @@ class _GridBound:
         self.n_dipoles = int(np.prod(self.grid_shape, dtype=np.int64))  # an upper bound
 
 
-def check_memory(family, params, spacing_nm, *, surroundings=None, memory_limit_bytes=None, method="cocg", dtype=np.complex128,
-                 preconditioner="none"):
+def check_memory(family, params, spacing_nm, *, surroundings=None, settings=None):
     """Refuse a design whose lattice would need more than the limit, before allocating it.
 
-    The estimate assumes every cell of the shape's bounding box is occupied (an upper
-    bound) and uses the solver's own accounting (:func:`memory_estimate_bytes`).
+    The estimate assumes every cell of the shape's bounding box is occupied and counts
+    the preconditioner whenever the settings may use it (an upper bound), with the
+    solver's own accounting (:func:`memory_estimate_bytes`).  ``settings``: the
+    :class:`SolverSettings` of the solves (default as :func:`check_settings`).
 
     Raises
     ------
@@ -182,9 +183,13 @@ def check_memory(family, params, spacing_nm, *, surroundings=None, memory_limit_
         With the estimate and the limit in GiB and the remedy.
     """
     surroundings = surroundings or {}
-    limit = default_memory_limit_bytes() if memory_limit_bytes is None else int(memory_limit_bytes)
+    settings = check_settings(settings)
+    limit = settings.memory_limit_bytes
     grid = family.bounding_grid_shape(params, spacing_nm, **surroundings)
-    need = memory_estimate_bytes(_GridBound(grid), dtype, method=method, preconditioner=preconditioner)
+    need = memory_estimate_bytes(
+        _GridBound(grid), settings.numpy_dtype, method=settings.method,
+        preconditioner="circulant" if settings.may_precondition else "none",
+    )
     if need > limit:
         raise LatticeTooLargeError(
             f"lattice of {family.name} at spacing_nm={spacing_nm:g} (bounding grid {grid[0]}x{grid[1]}x{grid[2]}) "
@@ -261,9 +266,7 @@ def simulate(
 
     surroundings = {k: v for k, v in (("substrate", substrate), ("medium_layer", medium_layer)) if v is not None}
     spacings = [d * f for f in REFINE_FACTORS] if refine else [d]
-    check_memory(fam, clean, d, surroundings=surroundings, memory_limit_bytes=settings.memory_limit_bytes,
-                 method=settings.method, dtype=settings.numpy_dtype,
-                 preconditioner=preconditioner_for_memory(settings))  # finest = largest
+    check_memory(fam, clean, d, surroundings=surroundings, settings=settings)  # finest = largest
     built = [_lattice_for(fam, clean, s, surroundings) for s in spacings]
     region_names = built[0][0].region_names
     overrides = dict(region_materials or {})
@@ -334,17 +337,6 @@ def simulate(
         c_abs_by_part_nm2=by_part,
         sites=sites0,
     )
-
-
-def preconditioner_for_memory(settings):
-    """The preconditioner a design's memory bound must count: "none" or "circulant" (an upper bound)."""
-    # For the memory bound: count the preconditioner unless it cannot be on ("auto" is
-    # never on with FCD; otherwise it may be, depending on the lattice).
-    if settings.preconditioner == "none" or settings.method != "cocg":
-        return "none"
-    if settings.preconditioner == "auto" and settings.polarizability == "fcd":
-        return "none"
-    return "circulant"
 
 
 def check_settings(settings):

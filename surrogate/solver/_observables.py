@@ -49,18 +49,23 @@ def absorption_by_site(polarization, alpha_site_nm3, k_per_nm):
 
 
 def cross_sections(polarization, e_inc, alpha_site_nm3, k_per_nm):
-    """Extinction and absorption cross sections [nm^2].
+    """Extinction and absorption cross sections [nm^2], and the absorption by site.
 
     ``C_ext = 4 pi k sum_j Im(E_inc,j^* . P_j)`` and
     ``C_abs = sum_j C_abs,j`` (:func:`absorption_by_site`) ([1], with ``|E0| = 1``).
+
+    Returns
+    -------
+    c_ext_nm2, c_abs_nm2 : float
+    c_abs_site_nm2 : ndarray, shape (N,)
     """
     p = np.asarray(polarization, dtype=np.complex128)
     k = float(k_per_nm)
     # [1] C_ext = (4 pi k / |E0|^2) sum_j Im(E_inc,j^* . P_j)
     c_ext = 4.0 * np.pi * k * float(np.sum(np.imag(np.conj(e_inc) * p)))
     # [1] C_abs = (4 pi k / |E0|^2) sum_j {Im[P_j . (alpha_j^-1)^* P_j^*] - (2/3) k^3 |P_j|^2}
-    c_abs = float(np.sum(absorption_by_site(p, alpha_site_nm3, k)))
-    return c_ext, c_abs
+    by_site = absorption_by_site(p, alpha_site_nm3, k)
+    return c_ext, float(np.sum(by_site)), by_site
 
 
 def scattering_amplitude(polarization, positions_nm, k_per_nm, directions, *, chunk_size=256):

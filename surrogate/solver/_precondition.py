@@ -57,9 +57,9 @@ import time
 import numpy as np
 import scipy.fft
 
-from ._green import green_coefficients
+from ._green import green_tensor
 
-__all__ = ["CirculantPreconditioner", "SHIFTS", "normal_axis", "preconditioner_memory_bytes"]
+__all__ = ["CirculantPreconditioner", "SHIFTS", "normal_axis", "preconditioner_memory_bytes", "circulant_pays", "auto_may_precondition"]
 
 #: Relative loss ``tau`` [-] of the constant diagonal per polarizability: of
 #: tau in {0.1, 0.2, 0.3, 0.4, 0.6}, the one with the fewest COCG products summed
@@ -192,19 +192,14 @@ class CirculantPreconditioner:
         off[..., 0] = ox[:, None, None] * d
         off[..., 1] = oy[None, :, None] * d
         off[..., 2] = oz[None, None, :] * d
-        r = np.sqrt(np.sum(off * off, axis=-1))
-        zero = r == 0
-        r[zero] = d  # placeholder; the self term is not part of G
-        a, b = green_coefficients(r, k, filtered_spacing_nm=d if filtered else None)
-        n = off / r[..., None]
+        zero = np.all(off == 0, axis=-1)
+        off[zero] = (d, 0.0, 0.0)  # placeholder; the self term is not part of G
+        g = green_tensor(off, k, filtered_spacing_nm=d if filtered else None)
+        g[zero] = 0.0
         weight = (wx[:, None] * wy[None, :])[..., None]
         ker = np.zeros((nx, ny, oz.size, 6), dtype=complex)
         for c, (pp, qq) in enumerate(((0, 0), (0, 1), (0, 2), (1, 1), (1, 2), (2, 2))):
-            comp = b * n[..., pp] * n[..., qq]  # G_pq = A delta_pq + B n_p n_q (_green.py)
-            if pp == qq:
-                comp += a
-            comp[zero] = 0.0
-            np.add.at(ker[..., c], (tx[:, None], ty[None, :]), comp * weight)
+            np.add.at(ker[..., c], (tx[:, None], ty[None, :]), g[..., pp, qq] * weight)
         return scipy.fft.fft2(ker, axes=(0, 1)).reshape(nx * ny, oz.size, 6)
 
     def _invert_blocks(self, ker_hat):
@@ -289,14 +284,21 @@ def circulant_pays(grid_shape, n_dipoles, kind):
     -------
     bool
     """
+    if not auto_may_precondition(kind):
+        return False
     g = np.asarray(grid_shape, dtype=float)
     fill = n_dipoles / float(np.prod(g))
     flatness = g.min() / np.sort(g)[1]  # normal extent over the shorter lateral one
-    if kind == "fcd":
-        # Never for FCD: measured in one run (disk-peg at 830 nm, d = 5 and 2.5 nm; gold film
-        # 300 x 150 x 50 nm at 800 nm, d = 5 nm; tol 1e-4 and 1e-5), the circulant cut FCD's
-        # products to 0.58-0.89x but its wall time was 0.90-1.50x (below 1 only for the
-        # disk-peg at d = 5 nm, tol 1e-5): FCD is already well conditioned and one
-        # application costs about one interaction product.
-        return False
     return bool(fill <= 0.8 or flatness <= 0.5)
+
+
+def auto_may_precondition(kind):
+    """Whether ``preconditioner="auto"`` can turn the circulant on for this polarizability.
+
+    Never for FCD: measured in one run (disk-peg at 830 nm, d = 5 and 2.5 nm; gold film
+    300 x 150 x 50 nm at 800 nm, d = 5 nm; tol 1e-4 and 1e-5), the circulant cut FCD's
+    products to 0.58-0.89x but its wall time was 0.90-1.50x (below 1 only for the disk-peg
+    at d = 5 nm, tol 1e-5): FCD is already well conditioned and one application costs
+    about one interaction product.
+    """
+    return kind != "fcd"

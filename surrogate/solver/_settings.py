@@ -15,8 +15,9 @@ from .._validation import check_choice, check_int, check_real
 from ..errors import InvalidParameterError, InvalidTypeError
 from ._krylov import METHODS as _KRYLOV
 from ._polarizability import POLARIZABILITIES
+from ._precondition import auto_may_precondition
 
-__all__ = ["SolverSettings", "PRECISIONS", "PRECONDITIONERS"]
+__all__ = ["SolverSettings", "PRECISIONS", "PRECONDITIONERS", "SOLVE_METHODS"]
 
 #: Preconditioners of the COCG solve (see ``_precondition.py``).
 PRECONDITIONERS = ("none", "circulant", "auto")
@@ -31,7 +32,8 @@ PRECISIONS = ("auto", "complex128", "complex64")
 #: above the tolerance (tests/solver/test_solve.py), so tighter tolerances use complex128.
 _AUTO_DOUBLE_BELOW_TOL = 1e-4
 
-_METHODS = tuple(_KRYLOV) + ("direct",)
+#: Methods accepted by :func:`solve`: the Krylov methods and a dense LU solve.
+SOLVE_METHODS = tuple(_KRYLOV) + ("direct",)
 
 
 @dataclass(frozen=True)
@@ -86,7 +88,7 @@ class SolverSettings:
 
     def __post_init__(self):
         check_choice("polarizability", self.polarizability, POLARIZABILITIES)
-        check_choice("method", self.method, _METHODS)
+        check_choice("method", self.method, SOLVE_METHODS)
         object.__setattr__(self, "tol", check_real("tol", self.tol, low=0.0, high=1.0, low_open=True, high_open=True))
         object.__setattr__(self, "max_iter", check_int("max_iter", self.max_iter, low=1, high=10_000_000))
         object.__setattr__(self, "dtype", _dtype_name(self.dtype))
@@ -107,6 +109,13 @@ class SolverSettings:
         if self.dtype == "auto":
             return np.dtype(np.complex64 if self.tol >= _AUTO_DOUBLE_BELOW_TOL else np.complex128)
         return np.dtype(self.dtype)
+
+    @property
+    def may_precondition(self):
+        """Whether a solve with these settings can use the circulant on some lattice (for memory bounds)."""
+        if self.preconditioner == "none" or self.method != "cocg":
+            return False
+        return self.preconditioner == "circulant" or auto_may_precondition(self.polarizability)
 
     def replace(self, **changes):
         """A copy with some settings changed (validated); unknown names are refused."""

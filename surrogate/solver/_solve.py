@@ -27,15 +27,12 @@ from ._interaction import FFTInteraction
 from ._krylov import krylov_solve
 from ._lattice import Lattice
 from ._memory import default_memory_limit_bytes, memory_estimate_bytes
-from ._observables import absorption_by_site, cross_sections, incident_field
+from ._observables import cross_sections, incident_field
 from ._polarizability import polarizability
 from ._precondition import SHIFTS, CirculantPreconditioner, circulant_pays
-from ._settings import SolverSettings
+from ._settings import SOLVE_METHODS, SolverSettings
 
 __all__ = ["DipoleSolution", "solve", "solve_sweep", "solve_polarizations", "SOLVE_METHODS"]
-
-#: Methods accepted by :func:`solve`.
-SOLVE_METHODS = ("cocg", "bicgstab", "gmres", "direct")
 
 _DTYPES = {np.dtype(np.complex128): "complex128", np.dtype(np.complex64): "complex64"}
 
@@ -308,8 +305,7 @@ def _s_factor(kdir, edir):
 def _finish(system, p, e_inc, wl, conv, n_iter, matvecs, res, reason, t0, *, n_host, kdir, edir, eps):
     st = system.settings
     kind, method, tol, dt = st.polarizability, st.method, st.tol, st.numpy_dtype
-    c_ext, c_abs = cross_sections(p, e_inc, system.alpha_site, system.k)
-    c_abs_site = absorption_by_site(p, system.alpha_site, system.k)
+    c_ext, c_abs, c_abs_site = cross_sections(p, e_inc, system.alpha_site, system.k)
     c_abs_site.setflags(write=False)
     lat = system.lattice
     p.setflags(write=False)
