@@ -257,7 +257,7 @@ def run_simulate(args):
         hs = ", ".join(f"{v:.4g}" for v in ev.hotspot_nm)
         print(f"# {result.family} {dict(result.params)}; {mats}; medium n={result.medium_index:g}; "
               f"d={result.spacing_nm:.4g} nm; {result.n_dipoles} dipoles; {result.polarizability}/{result.method}/"
-              f"{result.settings.dtype}; incidence polar {result.incidence.polar_deg:g} deg, azimuth "
+              f"{result.solutions[0].dtype if result.solutions else result.settings.dtype}; incidence polar {result.incidence.polar_deg:g} deg, azimuth "
               f"{result.incidence.azimuth_deg:g} deg, polarization {result.incidence.polarization_deg:g} deg; "
               f"hotspot ({hs}) nm")
         fmt = {"wavelength_nm": "{:g}", "converged": "{}", "n_iter": "{}", "residual": "{:.2e}",
